@@ -1,0 +1,12 @@
+/* dwell.h - every public header of libdwell. */
+#ifndef DWELL_H
+#define DWELL_H
+
+#define DWELL_VERSION "0.1.0"
+
+#include "dwell/diag.h"
+#include "dwell/budget.h"
+#include "dwell/problem.h"
+#include "dwell/cli.h"
+
+#endif
