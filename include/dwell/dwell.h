@@ -7,6 +7,7 @@
 #include "dwell/diag.h"
 #include "dwell/budget.h"
 #include "dwell/problem.h"
+#include "dwell/mtx.h"
 #include "dwell/cli.h"
 
 #endif
