@@ -8,6 +8,7 @@
 #include "dwell/budget.h"
 #include "dwell/problem.h"
 #include "dwell/mtx.h"
+#include "dwell/circuit.h"
 #include "dwell/cli.h"
 
 #endif
