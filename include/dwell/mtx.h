@@ -20,6 +20,11 @@ int dw_mtx_read_matrix(const char *path, FILE *notices, dw_csr **out, dw_error *
  * one column.  *out has *len entries (unset entries zero). */
 int dw_mtx_read_vector(const char *path, double complex **out, int64_t *len, dw_error *err);
 
+/* The same, writing a notice line to `notices` (when not NULL) if repeated
+ * coordinate entries were summed. */
+int dw_mtx_read_vector_noting(const char *path, FILE *notices,
+	double complex **out, int64_t *len, dw_error *err);
+
 void dw_csr_free(dw_csr *m);
 
 #endif
