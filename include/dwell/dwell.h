@@ -9,6 +9,7 @@
 #include "dwell/problem.h"
 #include "dwell/mtx.h"
 #include "dwell/circuit.h"
+#include "dwell/qasm.h"
 #include "dwell/cli.h"
 
 #endif

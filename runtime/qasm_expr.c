@@ -1,0 +1,361 @@
+/* qasm_expr.c - angle and index expressions of the OpenQASM 3 reader.
+ * Takes: tokens at the parser's position and the symbols in scope.
+ * Gives: expression nodes in the program's pool (constant sub-trees folded
+ * at parse time), their evaluation against a frame of variable slots, and
+ * the standalone evaluator dw_angle_expr_eval.
+ *
+ *   expr    := term (('+' | '-') term)*
+ *   term    := unary (('*' | '/') unary)*
+ *   unary   := ('-' | '+') unary | power
+ *   power   := primary ['**' unary]          (right associative)
+ *   primary := number | constant | variable | fn '(' expr ')' | '(' expr ')'
+ *
+ * All arithmetic is IEEE double; integer literals are exact up to 2^53. */
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "qasm_prog.h"
+
+int qx_is(const qx_token *t, const char *s)
+{
+	size_t n = strlen(s);
+	return (t->kind == QT_PUNCT || t->kind == QT_IDENT) && t->len == n
+		&& !memcmp(t->text, s, n);
+}
+
+int qx_error_at(qx_parser *p, const qx_token *t, const char *fmt, ...)
+{
+	char what[768];
+	va_list ap;
+	va_start(ap, fmt);
+	vsnprintf(what, sizeof what, fmt, ap);
+	va_end(ap);
+	if (t->kind == QT_EOF)
+		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: %s, found the end of the input",
+			p->file, t->line, t->col, what);
+	int len = t->len > 40 ? 40 : (int)t->len;
+	return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: %s, found '%.*s'",
+		p->file, t->line, t->col, what, len, t->text);
+}
+
+const qx_sym *qx_lookup(qx_parser *p, const char *name, size_t len)
+{
+	for (size_t i = p->nsym; i-- > 0;) {
+		const qx_sym *s = &p->sym[i];
+		if (s->len == len && !memcmp(s->name, name, len))
+			return s;
+	}
+	return NULL;
+}
+
+int qx_new_expr(qx_parser *p, const qx_expr *node)
+{
+	dw_qasm_program *g = p->prog;
+	if (g->nex == g->capex) {
+		size_t cap = g->capex ? 2 * g->capex : 64;
+		if (cap > (size_t)INT32_MAX) {
+			dw_fail(p->err, DW_EINPUT, "%s: too many expressions", p->file);
+			return -1;
+		}
+		qx_expr *e = realloc(g->ex, cap * sizeof *e);
+		if (!e) {
+			dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
+			return -1;
+		}
+		g->ex = e;
+		g->capex = cap;
+	}
+	g->ex[g->nex] = *node;
+	return (int)g->nex++;
+}
+
+static const struct { const char *name; int fn; } functions[] = {
+	{"sin", QF_SIN}, {"cos", QF_COS}, {"tan", QF_TAN}, {"arcsin", QF_ASIN},
+	{"arccos", QF_ACOS}, {"arctan", QF_ATAN}, {"exp", QF_EXP}, {"ln", QF_LN},
+	{"sqrt", QF_SQRT},
+};
+
+static const struct { const char *name; double value; } constants[] = {
+	{"pi", 3.14159265358979323846}, {"\xCF\x80", 3.14159265358979323846},
+	{"tau", 6.28318530717958647692}, {"\xCF\x84", 6.28318530717958647692},
+	{"euler", 2.71828182845904523536}, {"\xE2\x84\x87", 2.71828182845904523536},
+};
+
+static const char *fn_name(int fn)
+{
+	for (size_t i = 0; i < sizeof functions / sizeof functions[0]; i++)
+		if (functions[i].fn == fn)
+			return functions[i].name;
+	return "?";
+}
+
+/* Apply one operation to numbers; 0 on success, else a reason. */
+static const char *apply(int op, int fn, double a, double b, double *out)
+{
+	double v = 0;
+	switch (op) {
+	case QE_NEG: v = -a; break;
+	case QE_ADD: v = a + b; break;
+	case QE_SUB: v = a - b; break;
+	case QE_MUL: v = a * b; break;
+	case QE_DIV:
+		if (b == 0)
+			return "division by zero";
+		v = a / b;
+		break;
+	case QE_POW: v = pow(a, b); break;
+	case QE_FN:
+		switch (fn) {
+		case QF_SIN: v = sin(a); break;
+		case QF_COS: v = cos(a); break;
+		case QF_TAN: v = tan(a); break;
+		case QF_ASIN: v = asin(a); break;
+		case QF_ACOS: v = acos(a); break;
+		case QF_ATAN: v = atan(a); break;
+		case QF_EXP: v = exp(a); break;
+		case QF_LN: v = log(a); break;
+		case QF_SQRT: v = sqrt(a); break;
+		default: return "unknown function";
+		}
+		break;
+	default:
+		return "unknown operation";
+	}
+	if (!isfinite(v))
+		return "result is not a finite number";
+	*out = v;
+	return NULL;
+}
+
+/* Make a node from op and operands, folding constants. */
+static int make(qx_parser *p, const qx_token *at, int op, int fn, int a, int b, int *out)
+{
+	const qx_expr *ea = &p->prog->ex[a];
+	const qx_expr *eb = b >= 0 ? &p->prog->ex[b] : NULL;
+	if (ea->op == QE_NUM && (!eb || eb->op == QE_NUM)) {
+		double v;
+		const char *why = apply(op, fn, ea->num, eb ? eb->num : 0, &v);
+		if (why)
+			return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: %s%s%s", p->file,
+				at->line, at->col, why, op == QE_FN ? " in " : "",
+				op == QE_FN ? fn_name(fn) : "");
+		qx_expr n = {QE_NUM, 0, -1, -1, -1, v, at->line, at->col};
+		*out = qx_new_expr(p, &n);
+		return *out < 0 ? p->err->status : DW_OK;
+	}
+	qx_expr n = {(unsigned char)op, (unsigned char)fn, a, b, -1, 0, at->line, at->col};
+	*out = qx_new_expr(p, &n);
+	return *out < 0 ? p->err->status : DW_OK;
+}
+
+static int parse_unary(qx_parser *p, int *out);
+
+static int parse_primary(qx_parser *p, int *out)
+{
+	const qx_token *t = &p->tok[p->pos];
+	if (t->kind == QT_INT || t->kind == QT_FLOAT) {
+		p->pos++;
+		qx_expr n = {QE_NUM, 0, -1, -1, -1, t->num, t->line, t->col};
+		*out = qx_new_expr(p, &n);
+		return *out < 0 ? p->err->status : DW_OK;
+	}
+	if (qx_is(t, "(")) {
+		p->pos++;
+		int st = qx_parse_expr(p, out);
+		if (st)
+			return st;
+		if (!qx_is(&p->tok[p->pos], ")"))
+			return qx_error_at(p, &p->tok[p->pos], "expected ')'");
+		p->pos++;
+		return DW_OK;
+	}
+	if (t->kind != QT_IDENT)
+		return qx_error_at(p, t, "expected a number, a name or '('");
+	p->pos++;
+	for (size_t i = 0; i < sizeof constants / sizeof constants[0]; i++)
+		if (qx_is(t, constants[i].name)) {
+			qx_expr n = {QE_NUM, 0, -1, -1, -1, constants[i].value, t->line, t->col};
+			*out = qx_new_expr(p, &n);
+			return *out < 0 ? p->err->status : DW_OK;
+		}
+	for (size_t i = 0; i < sizeof functions / sizeof functions[0]; i++)
+		if (qx_is(t, functions[i].name)) {
+			if (!qx_is(&p->tok[p->pos], "("))
+				return qx_error_at(p, &p->tok[p->pos], "expected '(' after %s",
+					functions[i].name);
+			p->pos++;
+			int a;
+			int st = qx_parse_expr(p, &a);
+			if (st)
+				return st;
+			if (!qx_is(&p->tok[p->pos], ")"))
+				return qx_error_at(p, &p->tok[p->pos], "expected ')'");
+			p->pos++;
+			return make(p, t, QE_FN, functions[i].fn, a, -1, out);
+		}
+	const qx_sym *s = qx_lookup(p, t->text, t->len);
+	if (!s)
+		return qx_error_at(p, t, "expected a number, a constant (pi, tau, euler), a function "
+			"or a declared variable");
+	if (s->kind == SY_CONST) {
+		qx_expr n = {QE_NUM, 0, -1, -1, -1, s->value, t->line, t->col};
+		*out = qx_new_expr(p, &n);
+		return *out < 0 ? p->err->status : DW_OK;
+	}
+	if (s->kind != SY_SLOT)
+		return qx_error_at(p, t, "expected a numeric value (a qubit, bit or gate name "
+			"cannot be used in arithmetic)");
+	if ((size_t)(s - p->sym) < p->barrier)
+		return qx_error_at(p, t, "expected a gate parameter, loop variable or constant "
+			"(a gate body cannot read outer variables)");
+	qx_expr n = {QE_SLOT, 0, -1, -1, s->index, 0, t->line, t->col};
+	*out = qx_new_expr(p, &n);
+	return *out < 0 ? p->err->status : DW_OK;
+}
+
+static int parse_power(qx_parser *p, int *out)
+{
+	int st = parse_primary(p, out);
+	if (st)
+		return st;
+	const qx_token *t = &p->tok[p->pos];
+	if (!qx_is(t, "**"))
+		return DW_OK;
+	p->pos++;
+	int b;
+	st = parse_unary(p, &b);
+	if (st)
+		return st;
+	return make(p, t, QE_POW, 0, *out, b, out);
+}
+
+static int parse_unary(qx_parser *p, int *out)
+{
+	const qx_token *t = &p->tok[p->pos];
+	if (qx_is(t, "-") || qx_is(t, "+")) {
+		p->pos++;
+		int a;
+		int st = parse_unary(p, &a);
+		if (st)
+			return st;
+		if (qx_is(t, "+")) {
+			*out = a;
+			return DW_OK;
+		}
+		return make(p, t, QE_NEG, 0, a, -1, out);
+	}
+	return parse_power(p, out);
+}
+
+static int parse_term(qx_parser *p, int *out)
+{
+	int st = parse_unary(p, out);
+	while (st == DW_OK) {
+		const qx_token *t = &p->tok[p->pos];
+		int op = qx_is(t, "*") ? QE_MUL : qx_is(t, "/") ? QE_DIV : -1;
+		if (op < 0)
+			break;
+		p->pos++;
+		int b;
+		st = parse_unary(p, &b);
+		if (st == DW_OK)
+			st = make(p, t, op, 0, *out, b, out);
+	}
+	return st;
+}
+
+int qx_parse_expr(qx_parser *p, int *out)
+{
+	int st = parse_term(p, out);
+	while (st == DW_OK) {
+		const qx_token *t = &p->tok[p->pos];
+		int op = qx_is(t, "+") ? QE_ADD : qx_is(t, "-") ? QE_SUB : -1;
+		if (op < 0)
+			break;
+		p->pos++;
+		int b;
+		st = parse_term(p, &b);
+		if (st == DW_OK)
+			st = make(p, t, op, 0, *out, b, out);
+	}
+	return st;
+}
+
+int qx_parse_const(qx_parser *p, double *out)
+{
+	const qx_token *t = &p->tok[p->pos];
+	int e;
+	int st = qx_parse_expr(p, &e);
+	if (st)
+		return st;
+	if (p->prog->ex[e].op != QE_NUM)
+		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected a constant expression "
+			"(no inputs, parameters or loop variables)", p->file, t->line, t->col);
+	*out = p->prog->ex[e].num;
+	return DW_OK;
+}
+
+int qx_eval(const dw_qasm_program *prog, int e, const double *vars,
+	double *out, dw_error *err)
+{
+	const qx_expr *x = &prog->ex[e];
+	double a = 0, b = 0;
+	switch (x->op) {
+	case QE_NUM:
+		*out = x->num;
+		return DW_OK;
+	case QE_SLOT:
+		*out = vars[x->slot];
+		return DW_OK;
+	default:
+		break;
+	}
+	int st = qx_eval(prog, x->a, vars, &a, err);
+	if (st == DW_OK && x->b >= 0)
+		st = qx_eval(prog, x->b, vars, &b, err);
+	if (st)
+		return st;
+	const char *why = apply(x->op, x->fn, a, b, out);
+	if (why)
+		return dw_fail(err, DW_EINPUT, "%s:%ld:%ld: %s%s%s", prog->name, x->line, x->col,
+			why, x->op == QE_FN ? " in " : "", x->op == QE_FN ? fn_name(x->fn) : "");
+	return DW_OK;
+}
+
+int dw_angle_expr_eval(const char *text, double *out, dw_error *err)
+{
+	dw_error local = {0};
+	qx_token *tok = NULL;
+	size_t ntok = 0;
+	dw_qasm_program prog = {0};
+	prog.name = (char *)"angle";
+	qx_parser p = {0};
+	p.file = "angle";
+	p.prog = &prog;
+	p.err = &local;
+	int st = qx_lex(text, "angle", &tok, &ntok, &local);
+	double v = 0;
+	if (st == DW_OK) {
+		p.tok = tok;
+		p.ntok = ntok;
+		st = qx_parse_const(&p, &v);
+		if (st == DW_OK && tok[p.pos].kind != QT_EOF)
+			st = qx_error_at(&p, &tok[p.pos], "expected an operator or the end of the expression");
+	}
+	free(tok);
+	free(prog.ex);
+	if (st != DW_OK) {
+		/* Reword "angle:1:COL: what" as "angle 'TEXT': column COL: what". */
+		const char *m = local.msg;
+		long line = 0, col = 0;
+		int used = 0;
+		if (sscanf(m, "angle:%ld:%ld: %n", &line, &col, &used) == 2 && used > 0)
+			return dw_fail(err, st, "angle '%.200s': column %ld: %s", text, col, m + used);
+		return dw_fail(err, st, "angle '%.200s': %s", text, m);
+	}
+	*out = v;
+	return DW_OK;
+}

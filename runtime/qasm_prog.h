@@ -1,0 +1,182 @@
+/* qasm_prog.h - internal form of a parsed OpenQASM 3 program, shared by
+ * the lexer (qasm_lex.c), the expression parser/evaluator (qasm_expr.c),
+ * the statement reader (qasm_read.c) and the executor (sim_exec.c).
+ *
+ * A program is a tree of statement blocks.  Expressions live in one pool
+ * (prog->ex) and are referred to by index; they read numbered variable
+ * slots of the current frame (the top level has one frame, each gate call
+ * gets a fresh one).  Locations (line, col) are kept for run-time errors. */
+#ifndef DWELL_QASM_PROG_H
+#define DWELL_QASM_PROG_H
+
+#include <stddef.h>
+
+#include "dwell/diag.h"
+#include "dwell/qasm.h"
+
+/* ---- tokens (qasm_lex.c) ---- */
+
+typedef enum { QT_EOF, QT_IDENT, QT_INT, QT_FLOAT, QT_STRING, QT_PUNCT } qx_tok_kind;
+
+typedef struct qx_token {
+	qx_tok_kind kind;
+	const char *text;     /* points into the source; not terminated */
+	size_t len;
+	long line, col;       /* 1-based; col counts characters */
+	double num;           /* QT_INT, QT_FLOAT */
+} qx_token;
+
+/* Split text into tokens (comments and white space dropped); the last
+ * token is QT_EOF.  *tok is malloc'd. */
+int qx_lex(const char *text, const char *name, qx_token **tok, size_t *ntok,
+	dw_error *err);
+
+/* ---- expressions (qasm_expr.c) ---- */
+
+enum { QE_NUM, QE_SLOT, QE_NEG, QE_ADD, QE_SUB, QE_MUL, QE_DIV, QE_POW, QE_FN };
+enum { QF_SIN, QF_COS, QF_TAN, QF_ASIN, QF_ACOS, QF_ATAN, QF_EXP, QF_LN, QF_SQRT };
+
+typedef struct qx_expr {
+	unsigned char op, fn;
+	int a, b;             /* operands (pool indices) */
+	int slot;             /* QE_SLOT */
+	double num;           /* QE_NUM */
+	long line, col;
+} qx_expr;
+
+/* ---- statements ---- */
+
+enum { QO_REG, QO_ELEM, QO_ARG };          /* whole register, reg[i], gate argument */
+
+typedef struct qx_operand {
+	unsigned char kind;
+	int reg;              /* register index, or argument index for QO_ARG */
+	int index;            /* QO_ELEM: expression */
+	long line, col;
+} qx_operand;
+
+enum { QM_CTRL, QM_NEGCTRL, QM_INV, QM_POW };
+
+typedef struct qx_mod {
+	unsigned char kind;
+	int count;            /* QM_CTRL/QM_NEGCTRL: number of controls */
+	int expr;             /* QM_POW: exponent expression */
+} qx_mod;
+
+enum { QS_GATE, QS_GPHASE, QS_FOR, QS_MEASURE, QS_RESET, QS_IF };
+
+typedef struct qx_block {
+	struct qx_stmt *s;
+	size_t n, cap;
+} qx_block;
+
+typedef struct qx_stmt {
+	unsigned char kind;
+	long line, col;
+	/* QS_GATE / QS_GPHASE */
+	int builtin;          /* QS_GATE: builtin gate id, or -1 */
+	int user;             /* QS_GATE: user gate index, or -1 */
+	int nmods;
+	qx_mod *mods;
+	int nparams;
+	int *params;          /* expressions */
+	int nops;             /* also QS_MEASURE (1 or 2: qubit, bit), QS_RESET (1), QS_IF (1 bit operand) */
+	qx_operand *ops;
+	/* QS_FOR: slot = start, start + step, ... while not past stop */
+	int slot, start, step, stop;
+	qx_block *body;       /* QS_FOR, QS_IF */
+	qx_block *orelse;     /* QS_IF, may be NULL */
+	int cond_value;       /* QS_IF: expression compared with the bit(s) */
+	int cond_not;         /* QS_IF: 1 for != */
+} qx_stmt;
+
+typedef struct qx_gatedef {
+	char *name;
+	int nparams, nqubits;
+	int nslots;           /* params occupy slots 0..nparams-1 */
+	qx_block body;
+} qx_gatedef;
+
+/* Built-in gates: U and gphase always; the rest after
+ * include "stdgates.inc".  Order fixed (ids used by sim_exec.c). */
+enum {
+	QB_U, QB_GPHASE,
+	QB_P, QB_X, QB_Y, QB_Z, QB_H, QB_S, QB_SDG, QB_T, QB_TDG, QB_SX,
+	QB_RX, QB_RY, QB_RZ, QB_CX, QB_CY, QB_CZ, QB_CP, QB_CRX, QB_CRY, QB_CRZ,
+	QB_CH, QB_SWAP, QB_CCX, QB_CSWAP, QB_CU,
+	QB_CX_OLD, QB_PHASE, QB_CPHASE, QB_ID, QB_U1, QB_U2, QB_U3,
+	QB_COUNT
+};
+
+typedef struct qx_builtin {
+	const char *name;
+	int nparams, nqubits;
+} qx_builtin;
+
+extern const qx_builtin qx_builtins[QB_COUNT];
+
+struct dw_qasm_program {
+	char *name;
+	int nqubits, nbits;
+	size_t nqregs, ncregs, ninputs, ngates;
+	dw_qasm_reg *qregs, *cregs;
+	dw_qasm_input *inputs;
+	qx_gatedef *gates;
+	int nslots;           /* top-level frame */
+	qx_block main;
+	qx_expr *ex;
+	size_t nex, capex;
+};
+
+/* ---- parser state shared by qasm_expr.c and qasm_read.c ---- */
+
+enum { SY_SLOT, SY_CONST, SY_QREG, SY_CREG, SY_GATE, SY_QARG };
+
+typedef struct qx_sym {
+	const char *name;
+	size_t len;
+	int kind;
+	int index;            /* slot, register, gate or argument index */
+	double value;         /* SY_CONST */
+} qx_sym;
+
+typedef struct qx_parser {
+	const char *file;
+	qx_token *tok;
+	size_t ntok, pos;
+	dw_qasm_program *prog;
+	qx_sym *sym;
+	size_t nsym, capsym;
+	size_t barrier;       /* symbols below this index are outside the gate body being read */
+	int in_gate;
+	int *nslots;          /* slot counter of the current frame */
+	int have_stdgates;
+	dw_error *err;
+} qx_parser;
+
+/* Record "FILE:LINE:COL: message" and return DW_EINPUT. */
+int qx_error_at(qx_parser *p, const qx_token *t, const char *fmt, ...)
+	__attribute__((format(printf, 3, 4)));
+
+/* Does token t equal the punctuation or identifier s? */
+int qx_is(const qx_token *t, const char *s);
+
+const qx_sym *qx_lookup(qx_parser *p, const char *name, size_t len);
+
+/* expression := term (('+'|'-') term)* ; returns the pool index in *out. */
+int qx_parse_expr(qx_parser *p, int *out);
+
+/* Parse an expression that must be constant (no inputs, parameters or
+ * loop variables); gives its value. */
+int qx_parse_const(qx_parser *p, double *out);
+
+/* Evaluate expression e with slot values vars; on a non-finite result or a
+ * division by zero fills err with "FILE:LINE:COL: ..." and returns
+ * DW_EINPUT. */
+int qx_eval(const dw_qasm_program *prog, int e, const double *vars,
+	double *out, dw_error *err);
+
+/* Append an expression node; returns its index or -1 (err filled). */
+int qx_new_expr(qx_parser *p, const qx_expr *node);
+
+#endif
