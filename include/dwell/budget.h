@@ -24,4 +24,10 @@ typedef struct dw_budget {
 	dw_budget_line line[DW_BUDGET_MAX];
 } dw_budget;
 
+/* Read a budget YAML file: a mapping figure -> non-negative number,
+ * optionally under a top-level `budget:` key (docs/problem-format.md lists
+ * the figures).  On error returns DW_EINPUT ("FILE:LINE: message") and *out
+ * is zeroed. */
+int dw_budget_load(const char *path, dw_budget *out, dw_error *err);
+
 #endif
