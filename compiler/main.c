@@ -22,6 +22,8 @@ typedef struct command {
 /* One line per subcommand. */
 static const command commands[] = {
 	{"version", cmd_version, "  (print the version)"},
+	{"diff", dw_cmd_diff, "A.json B.json [--json]  (ledger deltas, per figure and per stage)"},
+	{"check", dw_cmd_check, "LEDGER.json --budget B.yaml  (exit 3 when over budget)"},
 };
 
 static void usage(FILE *f)

@@ -10,6 +10,8 @@
 #include "dwell/mtx.h"
 #include "dwell/circuit.h"
 #include "dwell/qasm.h"
+#include "dwell/json.h"
+#include "dwell/audit.h"
 #include "dwell/cli.h"
 
 #endif
