@@ -66,6 +66,7 @@ static const good_case good_cases[] = {
 	{"array-complex-hermitian", 3, {1, 2, 0, 2, 5, 0, 0, 0, -1},
 		{0, -1, 0, 1, 0, 3, 0, -3, 0}, 7, 0},
 	{"layout-comments-blanks", 2, {1.25, 0, 0.5, -3}, {0}, 3, 0},
+	{"layout-comment-after-blank", 2, {0, -6, 0, 0}, {0}, 1, 0},
 	{"layout-banner-case", 2, {1, 2, 2, 0}, {0}, 3, 0},
 	{"layout-banner-all-lowercase", 2, {0, 0, 0, 8}, {0}, 1, 0},
 	{"layout-crlf", 2, {0, 3, 4, 0}, {0}, 2, 0},
