@@ -166,6 +166,26 @@ static long event_line(const builder *b, const yaml_event_t *ev)
 	return b->zero_lines ? 0 : (long)ev->start_mark.line + 1;
 }
 
+/* Key path of the open collections plus `last`, e.g. "schedule.seed". */
+static void open_path(const builder *b, char *buf, size_t size, const char *last)
+{
+	buf[0] = '\0';
+	for (int d = 0; d + 1 < b->depth; d++) {
+		const dw_ynode *c = b->stack[d];
+		char part[300];
+		if (c->kind == DW_Y_MAP && c->len)
+			dw_ypath_key(part, sizeof part, buf, c->key[c->len - 1]->text);
+		else if (c->kind == DW_Y_SEQ && c->len)
+			dw_ypath_index(part, sizeof part, buf, c->len - 1);
+		else
+			continue;
+		snprintf(buf, size, "%s", part);
+	}
+	char part[300];
+	dw_ypath_key(part, sizeof part, buf, last);
+	snprintf(buf, size, "%s", part);
+}
+
 /* Attach a new node to the open collection (or make it the root). */
 static int attach(builder *b, dw_ynode *n)
 {
@@ -192,11 +212,10 @@ static int attach(builder *b, dw_ynode *n)
 		}
 		for (size_t i = 0; i < top->len; i++)
 			if (!strcmp(top->key[i]->text, n->text)) {
-				if (top->key[i]->line > 0)
-					dw_yerr(b->err, n, NULL, "duplicate key '%s' (first at line %ld)",
-						n->text, top->key[i]->line);
-				else
-					dw_yerr(b->err, n, NULL, "duplicate key '%s'", n->text);
+				char path[300];
+				open_path(b, path, sizeof path, n->text);
+				dw_yerr(b->err, n, path, "duplicate key (first at line %ld)",
+					top->key[i]->line);
 				dw_ynode_free(n);
 				return b->err->status;
 			}
