@@ -129,6 +129,57 @@ out:
 	dw_json_free(b);
 }
 
+static dw_json *parse_text(const char *text)
+{
+	dw_error err = {0};
+	dw_json *v = NULL;
+	if (dw_json_parse_string(text, strlen(text), "mem", &v, &err))
+		fprintf(stderr, "%s\n", err.msg);
+	return v;
+}
+
+/* Repeated stage names pair in order; differing problems are allowed;
+ * a mixed integer/fraction pair is compared as doubles; negatives. */
+static void test_diff_edges(void)
+{
+	dw_json *a = parse_text("{\"problem\": {\"name\": \"p1\"}, \"x\": 3, \"y\": -5,"
+		" \"stages\": [{\"stage\": \"step\", \"gates\": 1}, {\"stage\": \"step\", \"gates\": 2}]}");
+	dw_json *b = parse_text("{\"problem\": {\"name\": \"p2\"}, \"x\": 3.5, \"y\": 4,"
+		" \"stages\": [{\"stage\": \"step\", \"gates\": 10}, {\"stage\": \"step\", \"gates\": 20},"
+		" {\"stage\": \"step\", \"gates\": 30}]}");
+	dw_ledger_diff d;
+	dw_error err = {0};
+	CHECK(a && b && dw_ledger_diff_build(a, "A", b, "B", &d, &err) == DW_OK, "build: %s", err.msg);
+	if (!err.status && a && b) {
+		CHECK(d.problem_differs == 1, "problem names differ");
+		const dw_delta *x = find(d.figure, d.nfigure, "x");
+		CHECK(x && !x->exact && x->delta == 0.5, "3 -> 3.5 inexact");
+		if (x)
+			CHECK_NEAR(x->pct, 50.0 / 3.0, 1e-12, "3 -> 3.5 percent");
+		/* -5 -> 4: +9, relative to |A| = 5: +180% */
+		expect_delta(d.figure, d.nfigure, "y", DW_DELTA_CHANGED, 9, 1, 180.0);
+		CHECK(d.nstage == 3, "three stages %zu", d.nstage);
+		if (d.nstage == 3) {
+			expect_delta(d.stage[0].field, d.stage[0].nfield, "gates", DW_DELTA_CHANGED, 9, 1, 900.0);
+			expect_delta(d.stage[1].field, d.stage[1].nfield, "gates", DW_DELTA_CHANGED, 18, 1, 900.0);
+			CHECK(!d.stage[2].in_a && d.stage[2].in_b, "third step only in B");
+			expect_delta(d.stage[2].field, d.stage[2].nfield, "gates", DW_DELTA_NEW, 30, 0, 0);
+		}
+		dw_ledger_diff_free(&d);
+	}
+	dw_json_free(a);
+	dw_json_free(b);
+
+	a = parse_text("{\"stages\":[{\"gates\":1}]}");
+	b = parse_text("{}");
+	memset(&err, 0, sizeof err);
+	CHECK(a && b && dw_ledger_diff_build(a, "A.json", b, "B.json", &d, &err) == DW_EINPUT
+		&& !strcmp(err.msg, "A.json:1:12: stage entry 1 is not an object with a string \"stage\" name"),
+		"nameless stage: %s", err.msg);
+	dw_json_free(a);
+	dw_json_free(b);
+}
+
 static char *slurp(FILE *f)
 {
 	long len;
@@ -351,6 +402,7 @@ static void test_check_command(void)
 int main(void)
 {
 	test_diff_library();
+	test_diff_edges();
 	test_diff_command();
 	test_audit_library();
 	test_check_command();
