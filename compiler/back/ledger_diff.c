@@ -442,23 +442,44 @@ static void format_change(const dw_delta *d, char *buf, size_t size)
 		snprintf(buf, size, "%+.2f%%", d->pct);
 }
 
-static int name_width(const dw_ledger_diff *d)
+/* Column widths of the text report, from every row printed. */
+typedef struct widths {
+	int name, a, b, delta, change;
+} widths;
+
+static void widen(int *w, size_t len)
 {
-	size_t w = 20;
-	for (size_t i = 0; i < d->nfigure; i++)
-		if (strlen(d->figure[i].name) + 2 > w)
-			w = strlen(d->figure[i].name) + 2;
-	for (size_t i = 0; i < d->nstage; i++)
-		for (size_t j = 0; j < d->stage[i].nfield; j++)
-			if (strlen(d->stage[i].field[j].name) + 4 > w)
-				w = strlen(d->stage[i].field[j].name) + 4;
-	return w > 60 ? 60 : (int)w;
+	if ((int)len > *w)
+		*w = len > 60 ? 60 : (int)len;
+}
+
+static void measure(widths *w, const dw_delta *row, size_t n, int indent)
+{
+	char buf[48];
+	for (size_t i = 0; i < n; i++) {
+		const dw_delta *d = &row[i];
+		if (d->kind == DW_DELTA_SAME)
+			continue;
+		widen(&w->name, strlen(d->name) + (size_t)indent);
+		widen(&w->a, d->a ? d->a->len : 1);
+		widen(&w->b, d->b ? d->b->len : 1);
+		format_delta(d, buf, sizeof buf);
+		widen(&w->delta, strlen(buf));
+		format_change(d, buf, sizeof buf);
+		widen(&w->change, strlen(buf));
+	}
+}
+
+static void write_header(FILE *f, const char *title, const widths *w)
+{
+	fprintf(f, "\n%-*s  %*s  %*s  %*s  %*s\n", w->name, title, w->a, "A", w->b, "B",
+		w->delta, "B - A", w->change, "change");
 }
 
 /* Changed rows one per line, then the unchanged ones wrapped together. */
-static void write_rows(FILE *f, const dw_delta *row, size_t n, int indent, int width)
+static void write_rows(FILE *f, const dw_delta *row, size_t n, int indent, const widths *w)
 {
-	char delta[40], change[40];
+	char delta[48], change[48];
 	size_t same = 0;
 	for (size_t i = 0; i < n; i++) {
 		const dw_delta *d = &row[i];
@@ -468,8 +489,9 @@ static void write_rows(FILE *f, const dw_delta *row, size_t n, int indent, int w
 		}
 		format_delta(d, delta, sizeof delta);
 		format_change(d, change, sizeof change);
-		fprintf(f, "%*s%-*s %20s %20s %21s %9s\n", indent, "", width - indent, d->name,
-			d->a ? d->a->str : "-", d->b ? d->b->str : "-", delta, change);
+		fprintf(f, "%*s%-*s  %*s  %*s  %*s  %*s\n", indent, "", w->name - indent, d->name,
+			w->a, d->a ? d->a->str : "-", w->b, d->b ? d->b->str : "-",
+			w->delta, delta, w->change, change);
 	}
 	if (!same)
 		return;
@@ -516,29 +538,32 @@ static void write_side(FILE *f, const char *tag, const char *file, const dw_json
 void dw_ledger_diff_write_text(FILE *f, const dw_ledger_diff *d,
 	const char *a_name, const char *b_name)
 {
-	int w = name_width(d);
+	widths w = {20, 1, 1, 5, 6};
+	measure(&w, d->figure, d->nfigure, 2);
+	for (size_t i = 0; i < d->nstage; i++)
+		measure(&w, d->stage[i].field, d->stage[i].nfield, 4);
 	fprintf(f, "Ledger comparison (B relative to A)\n");
 	write_side(f, "A", a_name, d->problem_a);
 	write_side(f, "B", b_name, d->problem_b);
-	fprintf(f, "\n%-*s %20s %20s %21s %9s\n", w, "Figures", "A", "B", "B - A", "change");
+	write_header(f, "Figures", &w);
 	if (d->nfigure)
-		write_rows(f, d->figure, d->nfigure, 2, w);
+		write_rows(f, d->figure, d->nfigure, 2, &w);
 	else
 		fprintf(f, "  (no numeric figures)\n");
 	if (d->nstage) {
-		fprintf(f, "\n%-*s %20s %20s %21s %9s\n", w, "Stages", "A", "B", "B - A", "change");
+		write_header(f, "Stages", &w);
 		for (size_t i = 0; i < d->nstage; i++) {
 			const dw_stage_delta *s = &d->stage[i];
 			fprintf(f, "  [");
 			fputs(s->stage, f);
 			fprintf(f, "]%s\n", s->in_a && s->in_b ? "" : s->in_a ? "  only in A" : "  only in B");
-			write_rows(f, s->field, s->nfield, 4, w);
+			write_rows(f, s->field, s->nfield, 4, &w);
 		}
 	}
 	if (d->nsetting) {
 		fprintf(f, "\nOther fields that differ (A -> B)\n");
 		for (size_t i = 0; i < d->nsetting; i++) {
-			fprintf(f, "  %-*s ", w - 2, d->setting[i].name);
+			fprintf(f, "  %-*s  ", w.name - 2, d->setting[i].name);
 			write_scalar_text(f, d->setting[i].a);
 			fputs(" -> ", f);
 			write_scalar_text(f, d->setting[i].b);
