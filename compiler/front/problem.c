@@ -34,6 +34,10 @@ static const char *const matrix_alts[] = {"file", "stencil", "pauli", NULL};
 static const char *const rhs_alts[] = {
 	"amplitudes", "file", "basis", "uniform", "product", "circuit", NULL
 };
+/* --set of one alternative drops the others, so kinds can be switched. */
+static const dw_ygroup exclusive[] = {
+	{"matrix", matrix_alts}, {"rhs", rhs_alts}, {NULL, NULL}
+};
 
 /* Copy of s (NULL on allocation failure, err filled). */
 static char *copy_string(const char *s, dw_error *err)
@@ -724,104 +728,6 @@ static int interpret(loader *ld, const dw_ynode *root)
 		&p->budget, err);
 }
 
-/* ---- --set overrides ---- */
-
-/* Under matrix or rhs, setting one alternative removes the others. */
-static void drop_other_alternatives(dw_ynode *map, const char *section,
-	const char *chosen)
-{
-	const char *const *alts = !strcmp(section, "matrix") ? matrix_alts
-		: !strcmp(section, "rhs") ? rhs_alts : NULL;
-	bool member = false;
-	for (int a = 0; alts && alts[a]; a++)
-		member = member || !strcmp(alts[a], chosen);
-	for (int a = 0; member && alts[a]; a++)
-		if (strcmp(alts[a], chosen))
-			dw_ymap_remove(map, alts[a]);
-}
-
-/* Apply "key.path=value" to the tree.  Setting one alternative of matrix or
- * rhs drops the others, so the kind can be switched from the command line. */
-static int apply_override(dw_ynode *root, const char *set, const char *label,
-	dw_error *err)
-{
-	const char *eq = strchr(set, '=');
-	if (!eq || eq == set)
-		return dw_fail_at(err, DW_EINPUT, label, 0, "expected key.path=value");
-	if (root->kind != DW_Y_MAP)
-		return DW_OK;   /* interpret() reports the file's own shape */
-	char *keys = dw_alloc(err, (size_t)(eq - set) + 1, 1);
-	if (!keys)
-		return err->status;
-	memcpy(keys, set, (size_t)(eq - set));
-	dw_ynode *value = dw_yaml_parse_text(eq + 1, label, err);
-	if (!value) {
-		free(keys);
-		return err->status;
-	}
-	dw_ynode *cur = root;
-	const char *section = NULL;
-	char *comp = keys;
-	for (int depth = 0; ; depth++) {
-		char *dot = strchr(comp, '.');
-		if (dot)
-			*dot = '\0';
-		if (!*comp) {
-			dw_fail_at(err, DW_EINPUT, label, 0, "empty key in the path");
-			break;
-		}
-		if (cur->kind == DW_Y_SEQ) {
-			char *end;
-			unsigned long long i = strtoull(comp, &end, 10);
-			if (*end || comp[0] < '0' || comp[0] > '9' || i >= cur->len) {
-				dw_fail_at(err, DW_EINPUT, label, 0, "'%s' is not an index of a "
-					"list of %zu", comp, cur->len);
-				break;
-			}
-			if (!dot) {
-				dw_ynode_free(cur->item[i]);
-				cur->item[i] = value;
-				value = NULL;
-				break;
-			}
-			cur = cur->item[i];
-		} else if (cur->kind == DW_Y_MAP) {
-			if (depth == 1)
-				drop_other_alternatives(cur, section, comp);
-			if (!dot) {
-				dw_ynode *key = dw_ynode_new_scalar(comp, 0, label, err);
-				if (key)
-					dw_ymap_put(cur, key, value, err);
-				value = NULL;
-				break;
-			}
-			if (depth == 0)
-				section = comp;
-			dw_ynode *child = dw_ymap_get(cur, comp, NULL);
-			if (!child || dw_ynode_is_null(child)) {
-				dw_ynode *key = dw_ynode_new_scalar(comp, 0, label, err);
-				child = dw_ynode_new_map(0, label, err);
-				if (!key || !child) {
-					dw_ynode_free(key);
-					dw_ynode_free(child);
-					break;
-				}
-				if (dw_ymap_put(cur, key, child, err))
-					break;
-			}
-			cur = child;
-		} else {
-			dw_fail_at(err, DW_EINPUT, label, 0, "'%s' is inside a value (%s:%ld), "
-				"not a section", comp, cur->origin, cur->line);
-			break;
-		}
-		comp = dot + 1;
-	}
-	dw_ynode_free(value);
-	free(keys);
-	return err->status;
-}
-
 /* ---- entry points ---- */
 
 int dw_problem_load(const char *path, const char *const *sets, size_t nsets,
@@ -847,7 +753,7 @@ int dw_problem_load(const char *path, const char *const *sets, size_t nsets,
 		if (!labels[i])
 			break;
 		snprintf(labels[i], len + 7, "--set %s", sets[i]);
-		apply_override(root, sets[i], labels[i], err);
+		dw_yaml_override(root, sets[i], labels[i], exclusive, err);
 	}
 	if (root && err->status == DW_OK)
 		interpret(&ld, root);

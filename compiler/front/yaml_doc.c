@@ -1,5 +1,6 @@
-/* yaml_doc.c - build a YAML document tree from libyaml events, and read
- * typed values from it (see yaml_doc.h).
+/* yaml_doc.c - build a YAML document tree from libyaml events, apply
+ * "key.path=value" overrides to it, and read typed values from it (see
+ * yaml_doc.h).
  * Takes: YAML text (file or string).  Gives: dw_ynode trees; typed values or
  * DW_EINPUT errors "ORIGIN:LINE: key.path: message". */
 #include "front/yaml_doc.h"
@@ -592,4 +593,102 @@ int dw_yget_enum(const dw_ynode *n, const char *path, const char *const *names,
 bool dw_yis_auto(const dw_ynode *n)
 {
 	return n && n->kind == DW_Y_SCALAR && !strcmp(n->text, "auto");
+}
+
+/* ---- overrides ---- */
+
+/* Setting one key of an exclusive group removes the others. */
+static void drop_other_alternatives(dw_ynode *map, const dw_ygroup *groups,
+	const char *section, const char *chosen)
+{
+	const char *const *alts = NULL;
+	for (size_t g = 0; groups && groups[g].section; g++)
+		if (!strcmp(groups[g].section, section))
+			alts = groups[g].keys;
+	bool member = false;
+	for (int a = 0; alts && alts[a]; a++)
+		member = member || !strcmp(alts[a], chosen);
+	for (int a = 0; member && alts[a]; a++)
+		if (strcmp(alts[a], chosen))
+			dw_ymap_remove(map, alts[a]);
+}
+
+int dw_yaml_override(dw_ynode *root, const char *set, const char *label,
+	const dw_ygroup *groups, dw_error *err)
+{
+	const char *eq = strchr(set, '=');
+	if (!eq || eq == set)
+		return dw_fail_at(err, DW_EINPUT, label, 0, "expected key.path=value");
+	if (root->kind != DW_Y_MAP)
+		return DW_OK;   /* the caller reports the document's own shape */
+	char *keys = dw_alloc(err, (size_t)(eq - set) + 1, 1);
+	if (!keys)
+		return err->status;
+	memcpy(keys, set, (size_t)(eq - set));
+	dw_ynode *value = dw_yaml_parse_text(eq + 1, label, err);
+	if (!value) {
+		free(keys);
+		return err->status;
+	}
+	dw_ynode *cur = root;
+	const char *section = NULL;
+	char *comp = keys;
+	for (int depth = 0; ; depth++) {
+		char *dot = strchr(comp, '.');
+		if (dot)
+			*dot = '\0';
+		if (!*comp) {
+			dw_fail_at(err, DW_EINPUT, label, 0, "empty key in the path");
+			break;
+		}
+		if (cur->kind == DW_Y_SEQ) {
+			char *end;
+			unsigned long long i = strtoull(comp, &end, 10);
+			if (*end || comp[0] < '0' || comp[0] > '9' || i >= cur->len) {
+				dw_fail_at(err, DW_EINPUT, label, 0, "'%s' is not an index of a "
+					"list of %zu", comp, cur->len);
+				break;
+			}
+			if (!dot) {
+				dw_ynode_free(cur->item[i]);
+				cur->item[i] = value;
+				value = NULL;
+				break;
+			}
+			cur = cur->item[i];
+		} else if (cur->kind == DW_Y_MAP) {
+			if (depth == 1 && section)
+				drop_other_alternatives(cur, groups, section, comp);
+			if (!dot) {
+				dw_ynode *key = dw_ynode_new_scalar(comp, 0, label, err);
+				if (key)
+					dw_ymap_put(cur, key, value, err);
+				value = NULL;
+				break;
+			}
+			if (depth == 0)
+				section = comp;
+			dw_ynode *child = dw_ymap_get(cur, comp, NULL);
+			if (!child || dw_ynode_is_null(child)) {
+				dw_ynode *key = dw_ynode_new_scalar(comp, 0, label, err);
+				child = dw_ynode_new_map(0, label, err);
+				if (!key || !child) {
+					dw_ynode_free(key);
+					dw_ynode_free(child);
+					break;
+				}
+				if (dw_ymap_put(cur, key, child, err))
+					break;
+			}
+			cur = child;
+		} else {
+			dw_fail_at(err, DW_EINPUT, label, 0, "'%s' is inside a value (%s:%ld), "
+				"not a section", comp, cur->origin, cur->line);
+			break;
+		}
+		comp = dot + 1;
+	}
+	dw_ynode_free(value);
+	free(keys);
+	return err->status;
 }

@@ -59,6 +59,21 @@ int dw_ymap_put(dw_ynode *map, dw_ynode *key, dw_ynode *value, dw_error *err);
 /* Remove a key and free its value; no-op when absent. */
 void dw_ymap_remove(dw_ynode *map, const char *key);
 
+/* Keys under a top-level section that exclude each other. */
+typedef struct dw_ygroup {
+	const char *section;
+	const char *const *keys;    /* NULL-terminated */
+} dw_ygroup;
+
+/* Apply one override "key.path=value" to the tree: the path names mapping
+ * keys separated by dots (a number selects a list entry), missing sections
+ * are created, the value is parsed as YAML (nodes get line 0 and origin
+ * label, which must outlive the tree), and setting one key of a group in
+ * groups (NULL-section terminated, may be NULL) removes the others.
+ * Errors: DW_EINPUT "LABEL: message". */
+int dw_yaml_override(dw_ynode *root, const char *set, const char *label,
+	const dw_ygroup *groups, dw_error *err);
+
 /* A null scalar: plain "", "~", "null", "Null" or "NULL". */
 bool dw_ynode_is_null(const dw_ynode *n);
 
