@@ -574,9 +574,9 @@ static int read_schedule(loader *ld, const dw_ynode *map)
 		double k;
 		if (dw_yget_real(v, "schedule.kappa", &k, err))
 			return err->status;
-		if (!(k >= 1))
-			return dw_yerr(err, v, "schedule.kappa", "a condition-number bound is "
-				"at least 1, got %s", v->text);
+		if (!(k >= 1) || k > 1e12)
+			return dw_yerr(err, v, "schedule.kappa", "a condition-number bound "
+				"lies in [1, 1e12], got %s", v->text);
 		p->kappa_user = k;
 	}
 	return DW_OK;

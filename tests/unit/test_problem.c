@@ -212,7 +212,7 @@ static void test_bad_files(void)
 		{"bad_points_last", 9, "schedule.points: the last point must be 1"},
 		{"bad_value_bits", 8, "oracle.value_bits: expected an integer or 'auto' (1..52), got '53'"},
 		{"bad_order", 7, "formula.order: expected 1, 2, 4, 6 or 8, got '3'"},
-		{"bad_kappa", 8, "schedule.kappa: a condition-number bound is at least 1"},
+		{"bad_kappa", 8, "schedule.kappa: a condition-number bound lies in [1, 1e12], got 0.5"},
 		{"bad_basis", 7, "rhs.basis: expected a basis index below the matrix size (0..3), got '4'"},
 		{"bad_uniform_false", 7, "rhs.uniform: only 'true'"},
 		{"bad_alias", 9, "aliases (*p) are not supported"},
@@ -327,6 +327,7 @@ static void test_overrides(void)
 		{"precision.x=1", "--set precision.x=1: 'x' is inside a value"},
 		{"matrix.pauli.7.coeff=1", "--set matrix.pauli.7.coeff=1: '7' is not an index of a list of 3"},
 		{"precision=.nan", "--set precision=.nan: precision: expected a finite number"},
+		{"schedule.kappa=1e13", "--set schedule.kappa=1e13: schedule.kappa: a condition-number bound lies in [1, 1e12]"},
 		{"rhs.basis=99", "--set rhs.basis=99: rhs.basis: expected a basis index below the matrix size (0..3)"},
 	};
 	for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
