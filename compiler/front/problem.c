@@ -737,6 +737,8 @@ int dw_problem_load(const char *path, const char *const *sets, size_t nsets,
 	if (!err)
 		err = &local;
 	memset(out, 0, sizeof *out);
+	if (!path)
+		return dw_fail(err, DW_EINTERNAL, "dw_problem_load: no path");
 	out->precision = 0.05;
 	out->power = 1.5;
 	out->seed = 1;

@@ -276,6 +276,26 @@ static void test_file_matrices(void)
 	}
 	dw_problem_free(&p);
 
+	/* Complex Hermitian [[a, b], [conj b, d]] has eigenvalues
+	 * (a+d)/2 +- sqrt(((a-d)/2)^2 + |b|^2) (common practice): a = 2, d = 3,
+	 * b = 1 - i give 2.5 +- 1.5, so 1 and 4. */
+	memset(&e, 0, sizeof e);
+	rc = dw_problem_load(CASES "good_herm2.yaml", NULL, 0, &p, &e);
+	if (!rc)
+		rc = dw_problem_analyse(&p, &e);
+	CHECK(rc == DW_OK, "good_herm2: %s", e.msg);
+	if (!rc) {
+		CHECK(!p.dilated && p.n == 1 && p.variant == 'P', "Hermitian, n 1, P");
+		CHECK_NEAR(p.lambda_min, 1, 1e-14, "lambda_min");
+		CHECK_NEAR(p.lambda_max, 4, 1e-14, "lambda_max");
+		CHECK_NEAR(p.kappa, 4, 1e-13, "kappa");
+		CHECK(p.matrix->is_complex && p.nnz == 4, "complex, 4 entries");
+		double complex *d = csr_dense(p.matrix);
+		CHECK(d[0 + 1 * 2] == 1 - I && d[1 + 0 * 2] == 1 + I, "off-diagonal kept");
+		free(d);
+	}
+	dw_problem_free(&p);
+
 	/* Dilation: A = [[1, 2], [0, 3]].  A^T A = [[1, 2], [2, 13]] has
 	 * eigenvalues 7 +- 2 sqrt 10, so sigma = sqrt(7 +- 2 sqrt 10) (singular
 	 * values as square roots of the eigenvalues of A^T A: common practice);
