@@ -25,6 +25,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
+#include <sys/stat.h>
 
 #include "front/mtx_triplets.h"
 
@@ -45,6 +46,8 @@ typedef struct line_reader {
 	size_t start, end;        /* unread bytes are buf[start, end) */
 	bool at_eof;
 	long line;                /* number of the line last returned */
+	int64_t file_bytes;       /* size of a regular file, else -1 */
+	bool saw_nul;             /* a NUL byte was read: check each line */
 } line_reader;
 
 /* Next line, NUL-terminated, newline (and a trailing '\r') removed.
@@ -85,6 +88,8 @@ static int next_line(line_reader *r, char **text, dw_error *err)
 				r->capacity *= 2;
 			}
 			size_t got = fread(r->buf + r->end, 1, r->capacity - 1 - r->end, r->file);
+			if (memchr(r->buf + r->end, '\0', got))
+				r->saw_nul = true;
 			r->end += got;
 			if (got == 0) {
 				if (ferror(r->file))
@@ -97,7 +102,7 @@ static int next_line(line_reader *r, char **text, dw_error *err)
 		r->line++;
 		if (len > 0 && begin[len - 1] == '\r')
 			begin[--len] = '\0';
-		if (strlen(begin) != len)
+		if (r->saw_nul && strlen(begin) != len)
 			return dw_fail_at(err, DW_EINPUT, r->path, r->line,
 				"expected text, found a NUL byte (binary file?)");
 		*text = begin;
@@ -252,6 +257,34 @@ static int parse_header(line_reader *r, char *text, mtx_want want,
 
 /* ---- numbers -------------------------------------------------------------- */
 
+/* A decimal integer token ([+-]digits, then a blank or the end): returns 1
+ * and *out, 0 when the token is not an integer, -1 when it overflows 64
+ * bits.  *end is left after the digits. */
+static int scan_int64(char *s, int64_t *out, char **end)
+{
+	char *p = s;
+	bool negative = false;
+	if (*p == '+' || *p == '-')
+		negative = *p++ == '-';
+	char *digits = p;
+	uint64_t v = 0;
+	bool overflow = false;
+	while (*p >= '0' && *p <= '9') {
+		unsigned d = (unsigned)(*p++ - '0');
+		if (v > (UINT64_MAX - d) / 10)
+			overflow = true;
+		else
+			v = v * 10 + d;
+	}
+	*end = p;
+	if (p == digits || (*p && !is_blank_char(*p)))
+		return 0;
+	if (overflow || v > (negative ? (uint64_t)INT64_MAX + 1 : (uint64_t)INT64_MAX))
+		return -1;
+	*out = negative ? -(int64_t)(v - 1) - 1 : (int64_t)v;
+	return 1;
+}
+
 /* One integer token in [low, high]; `what` names it in messages. */
 static int parse_count(line_reader *r, char **cursor, const char *what,
 	int64_t low, int64_t high, int64_t *out, dw_error *err)
@@ -259,19 +292,88 @@ static int parse_count(line_reader *r, char **cursor, const char *what,
 	char shown[64];
 	char *s = skip_blanks(*cursor);
 	char *end;
-	errno = 0;
-	long long v = strtoll(s, &end, 10);
-	if (end == s || (*end && !is_blank_char(*end)))
+	int64_t v = 0;
+	int scanned = scan_int64(s, &v, &end);
+	if (scanned == 0)
 		return dw_fail_at(err, DW_EINPUT, r->path, r->line,
 			"expected %s (an integer from %lld to %lld), found %s", what,
 			(long long)low, (long long)high, quote_token(s, shown, sizeof shown));
-	if (errno == ERANGE || v < low || v > high)
+	if (scanned < 0 || v < low || v > high)
 		return dw_fail_at(err, DW_EINPUT, r->path, r->line,
 			"%s %s is out of range (expected %lld to %lld)", what,
 			quote_token(s, shown, sizeof shown), (long long)low, (long long)high);
-	*out = (int64_t)v;
+	*out = v;
 	*cursor = end;
 	return DW_OK;
+}
+
+/* Clinger's fast path ("How to Read Floating Point Numbers Accurately",
+ * PLDI 1990): a decimal whose significant digits form an integer m <= 2^53
+ * and whose power of ten e has |e| <= 22 is m * 10^e (or m / 10^-e) in one
+ * correctly rounded IEEE operation, which is the value strtod returns.
+ * Returns false, leaving the token to strtod, in every other case
+ * (more digits, large exponents, "nan", "inf", junk after the number). */
+static bool fast_decimal(const char *s, double *out, char **end)
+{
+	static const double power_of_ten[23] = {
+		1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
+		1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+	const char *p = s;
+	bool negative = false;
+	if (*p == '+' || *p == '-')
+		negative = *p++ == '-';
+	uint64_t m = 0;
+	int significant = 0, exp10 = 0;
+	bool any_digit = false, after_point = false;
+	for (;; p++) {
+		if (*p == '.' && !after_point) {
+			after_point = true;
+			continue;
+		}
+		if (*p < '0' || *p > '9')
+			break;
+		any_digit = true;
+		unsigned d = (unsigned)(*p - '0');
+		if (m == 0 && d == 0) {          /* leading zero */
+			exp10 -= after_point;
+			continue;
+		}
+		if (++significant > 19)
+			return false;
+		m = m * 10 + d;
+		exp10 -= after_point;
+	}
+	if (!any_digit)
+		return false;
+	if (*p == 'e' || *p == 'E') {
+		p++;
+		bool exp_negative = false;
+		if (*p == '+' || *p == '-')
+			exp_negative = *p++ == '-';
+		if (*p < '0' || *p > '9')
+			return false;
+		int e = 0;
+		for (; *p >= '0' && *p <= '9'; p++) {
+			if (e > 10000)
+				return false;
+			e = e * 10 + (*p - '0');
+		}
+		exp10 += exp_negative ? -e : e;
+	}
+	if (*p && !is_blank_char(*p))
+		return false;
+	double v;
+	if (m == 0)
+		v = 0.0;
+	else if (m > ((uint64_t)1 << 53) || exp10 < -22 || exp10 > 22)
+		return false;
+	else if (exp10 >= 0)
+		v = (double)m * power_of_ten[exp10];
+	else
+		v = (double)m / power_of_ten[-exp10];
+	*out = negative ? -v : v;
+	*end = (char *)p;
+	return true;
 }
 
 static bool is_hex_float(const char *s)
@@ -290,15 +392,18 @@ static int parse_value(line_reader *r, char **cursor, const char *what,
 	char *end;
 	double v;
 	if (integer) {
-		errno = 0;
-		long long i = strtoll(s, &end, 10);
-		if (end != s && (!*end || is_blank_char(*end)) && errno == ERANGE)
+		int64_t i = 0;
+		int scanned = scan_int64(s, &i, &end);
+		if (scanned < 0)
 			return dw_fail_at(err, DW_EINPUT, r->path, r->line,
 				"%s %s does not fit in a 64-bit integer", what,
 				quote_token(s, shown, sizeof shown));
+		if (scanned == 0)
+			end = s;
 		v = (double)i;
 	} else {
-		v = is_hex_float(s) ? (end = s, 0.0) : strtod(s, &end);
+		if (!fast_decimal(s, &v, &end))
+			v = is_hex_float(s) ? (end = s, 0.0) : strtod(s, &end);
 	}
 	if (end == s || (*end && !is_blank_char(*end)))
 		return dw_fail_at(err, DW_EINPUT, r->path, r->line,
@@ -339,13 +444,16 @@ void mtx_triplets_free(mtx_triplets *t)
 	t->count = t->capacity = 0;
 }
 
-/* Room for one more entry; capacity doubles up to `limit` (the declared
- * entry count), so a lying size line cannot make us allocate ahead. */
-static int reserve_entry(mtx_triplets *t, int64_t limit, dw_error *err)
+/* Room for one more entry.  The first allocation is `first` entries (what
+ * the rest of the file can hold at most); capacity then doubles up to
+ * `limit` (the declared count), so a lying size line cannot make us
+ * allocate ahead of the text. */
+static int reserve_entry(mtx_triplets *t, int64_t limit, int64_t first,
+	dw_error *err)
 {
 	if (t->count < t->capacity)
 		return DW_OK;
-	int64_t grown = t->capacity ? t->capacity * 2 : 4096;
+	int64_t grown = t->capacity ? t->capacity * 2 : first;
 	if (grown > limit)
 		grown = limit;
 	if (grown <= t->count)
@@ -451,7 +559,7 @@ static void array_cursor_advance(const mtx_triplets *t, array_cursor *c)
 }
 
 static int parse_entry(line_reader *r, char *text, mtx_triplets *t,
-	array_cursor *pos, int64_t declared, dw_error *err)
+	array_cursor *pos, int64_t declared, int64_t first, dw_error *err)
 {
 	static const char *const layouts[2][4] = {
 		{"i j value", "i j value", "i j real imaginary", "i j"},
@@ -504,7 +612,7 @@ static int parse_entry(line_reader *r, char *text, mtx_triplets *t,
 	/* Array storage is dense: its zeros are not entries. */
 	if (t->format == MTX_ARRAY && re == 0.0 && im == 0.0)
 		return DW_OK;
-	if ((st = reserve_entry(t, declared, err)))
+	if ((st = reserve_entry(t, declared, first, err)))
 		return st;
 	t->row[t->count] = i;
 	t->col[t->count] = j;
@@ -542,6 +650,16 @@ static int read_all(line_reader *r, mtx_want want, mtx_triplets *t, dw_error *er
 	if ((st = parse_size_line(r, text, want, t, &declared, err)))
 		return st;
 
+	/* The shortest entry line is "1\n" (array) or "1 1\n" (pattern), plus
+	 * two bytes per value field: so the text bounds the entry count. */
+	int64_t first = 4096;
+	if (r->file_bytes > 0) {
+		int64_t shortest = (t->format == MTX_COORDINATE ? 4 : 0)
+			+ (t->field == MTX_PATTERN ? 0 : t->field == MTX_COMPLEX ? 4 : 2);
+		first = r->file_bytes / shortest + 1;
+	}
+	if (first > declared)
+		first = declared;
 	array_cursor pos;
 	array_cursor_start(t, &pos);
 	int64_t seen = 0;
@@ -555,7 +673,7 @@ static int read_all(line_reader *r, mtx_want want, mtx_triplets *t, dw_error *er
 				(long long)declared, size_line,
 				quote_token(text, shown, sizeof shown));
 		}
-		if ((st = parse_entry(r, text, t, &pos, declared, err)))
+		if ((st = parse_entry(r, text, t, &pos, declared, first, err)))
 			return st;
 		seen++;
 	}
@@ -577,7 +695,11 @@ int mtx_read_triplets(const char *path, mtx_want want, mtx_triplets *t,
 	if (!f)
 		return dw_fail_at(err, DW_EINPUT, path, 0, "cannot open: %s",
 			strerror(errno));
-	line_reader r = {.file = f, .path = path, .capacity = MTX_BLOCK_BYTES};
+	line_reader r = {.file = f, .path = path, .capacity = MTX_BLOCK_BYTES,
+		.file_bytes = -1};
+	struct stat info;
+	if (fstat(fileno(f), &info) == 0 && S_ISREG(info.st_mode))
+		r.file_bytes = (int64_t)info.st_size;
 	r.buf = malloc(r.capacity);
 	int st;
 	if (!r.buf)

@@ -486,6 +486,63 @@ static void test_generated(void)
 	remove(path);
 }
 
+/* Decimal values: the reader's own fast path for short decimals must give
+ * bit for bit what the C library's strtod gives (glibc rounds correctly;
+ * common practice to treat it as the reference).  Random strings with 1 to
+ * 20 digits, a point anywhere or nowhere, optional exponents, signs.
+ * Bit for bit (memcmp), so a last-place rounding difference is caught. */
+static void test_decimal_values(void)
+{
+	enum { COUNT = 20000 };
+	char path[] = "/tmp/dwell-test-mtx-dec-XXXXXX";
+	int fd = mkstemp(path);
+	CHECK(fd >= 0, "mkstemp failed");
+	if (fd < 0)
+		return;
+	FILE *f = fdopen(fd, "w");
+	fprintf(f, "%%%%MatrixMarket matrix array real general\n%d 1\n", COUNT);
+	static char text[COUNT][48];
+	lcg_state = 7;
+	for (int k = 0; k < COUNT; k++) {
+		char *t = text[k];
+		int n = 0, digits = 1 + (int)(lcg_next() % 20);
+		int point = (int)(lcg_next() % (uint64_t)(digits + 2)) - 1;
+		if (lcg_next() % 3 == 0)
+			t[n++] = lcg_next() % 2 ? '-' : '+';
+		for (int d = 0; d < digits; d++) {
+			if (d == point)
+				t[n++] = '.';
+			t[n++] = (char)('0' + (d == 0 && lcg_next() % 4 == 0 ? 0 : lcg_next() % 10));
+		}
+		if (point == digits)
+			t[n++] = '.';
+		if (lcg_next() % 2)
+			n += snprintf(t + n, 48 - (size_t)n, "%c%d", lcg_next() % 2 ? 'e' : 'E',
+				(int)(lcg_next() % 61) - 30);
+		t[n] = '\0';
+		fprintf(f, "%s\n", t);
+	}
+	fclose(f);
+	double complex *v = NULL;
+	int64_t len = 0;
+	dw_error err = {0};
+	int st = dw_mtx_read_vector(path, &v, &len, &err);
+	CHECK(st == DW_OK && len == COUNT, "decimal values: %s", err.msg);
+	int wrong = 0;
+	for (int k = 0; st == DW_OK && k < COUNT; k++) {
+		double want = strtod(text[k], NULL), got = creal(v[k]);
+		/* Array zeros (also -0) are not entries, so they come back as +0. */
+		bool same = want == 0.0 ? got == 0.0 : !memcmp(&want, &got, sizeof want);
+		if (!same) {
+			if (wrong++ < 5)
+				CHECK(0, "'%s' read as %.17g, strtod gives %.17g", text[k], got, want);
+		}
+	}
+	CHECK(wrong == 0, "decimal values: %d of %d differ from strtod", wrong, COUNT);
+	free(v);
+	remove(path);
+}
+
 int main(void)
 {
 	test_good_matrices();
@@ -495,5 +552,6 @@ int main(void)
 	check_corpus_listed(GOOD_DIR, good_listed);
 	check_corpus_listed(BAD_DIR, bad_listed);
 	test_generated();
+	test_decimal_values();
 	return check_done();
 }
