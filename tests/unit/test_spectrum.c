@@ -6,7 +6,9 @@
  * project root. */
 #include <complex.h>
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
+#include <unistd.h>
 #include <string.h>
 
 #include <lapacke.h>
@@ -379,6 +381,37 @@ static void test_file_matrices(void)
 		&& p.product[0][1] == 0.25 && p.product[1][0] == 0 && p.product[1][1] == 0,
 		"product extended: %s", e.msg);
 	dw_problem_free(&p);
+
+	/* beyond 4096 rows the dense path refuses (a 4097 x 4097 identity in
+	 * a temporary file) */
+	char mtx[] = "/tmp/dwell-big-XXXXXX";
+	int fd = mkstemp(mtx);
+	FILE *f = fd >= 0 ? fdopen(fd, "w") : NULL;
+	CHECK(f != NULL, "temporary file");
+	if (f) {
+		fprintf(f, "%%%%MatrixMarket matrix coordinate real general\n4097 4097 4097\n");
+		for (int i = 1; i <= 4097; i++)
+			fprintf(f, "%d %d 1\n", i, i);
+		fclose(f);
+		char yaml[] = "/tmp/dwell-big-yaml-XXXXXX";
+		int yd = mkstemp(yaml);
+		FILE *y = yd >= 0 ? fdopen(yd, "w") : NULL;
+		CHECK(y != NULL, "temporary yaml");
+		if (y) {
+			fprintf(y, "matrix: {file: \"%s\"}\nrhs: {basis: 0}\n", mtx);
+			fclose(y);
+			memset(&e, 0, sizeof e);
+			rc = dw_problem_load(yaml, NULL, 0, &p, &e);
+			if (!rc)
+				rc = dw_problem_analyse(&p, &e);
+			CHECK(rc == DW_EINPUT && strstr(e.msg, "4097 rows")
+				&& strstr(e.msg, "sparse spectrum estimation not yet available"),
+				"4097 rows: %s", e.msg);
+			dw_problem_free(&p);
+			remove(yaml);
+		}
+		remove(mtx);
+	}
 
 	/* stencils are not analysed yet */
 	memset(&e, 0, sizeof e);
