@@ -48,6 +48,9 @@ static int fail_at(exec *x, long line, long col, const char *fmt, ...)
 /* Push a frame of n zeroed slots; gives its base index. */
 static int push_frame(exec *x, int n, size_t *base)
 {
+	*base = x->nvars;
+	if (n == 0)
+		return DW_OK;
 	if (x->nvars + (size_t)n > x->capvars) {
 		size_t cap = x->capvars ? x->capvars : 64;
 		while (cap < x->nvars + (size_t)n)
