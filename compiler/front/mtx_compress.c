@@ -7,9 +7,11 @@
  * repeated positions summed (one notice line says how many), read-only from
  * then on; or, for a one-column file, a dense vector.
  *
- * Method: count entries per row, scatter into place (a counting sort by
- * row), free the triplets, then sort each row by column in place and merge
- * repeats.  Peak memory: the triplets plus the compressed arrays. */
+ * Method: the triplet index arrays are reused as the result's (enlarged
+ * for the mirrored half), values turned complex, entries bucket-sorted by
+ * row in place, then each row sorted by column in place and repeats
+ * merged.  Peak memory: two index arrays, the triplet values and the
+ * complex values (40 bytes per entry for a real general file). */
 #include <complex.h>
 #include <stdbool.h>
 #include <stdlib.h>
@@ -96,52 +98,88 @@ static double complex mirrored(mtx_symmetry symmetry, double complex v)
 	}
 }
 
+/* Swap entries a and b of the three parallel arrays. */
+static void swap_triple(int64_t *row, int64_t *col, double complex *val,
+	int64_t a, int64_t b)
+{
+	int64_t r = row[a];
+	row[a] = row[b];
+	row[b] = r;
+	swap_entries(col, val, a, b);
+}
+
 int mtx_compress(mtx_triplets *t, FILE *notices, dw_csr **out, dw_error *err)
 {
 	*out = NULL;
 	bool mirror = t->symmetry != MTX_GENERAL;
-	int64_t rows = t->rows;
+	int64_t rows = t->rows, count = t->count;
+	int64_t *row = t->row, *next = NULL;
 	dw_csr *m = dw_alloc(err, 1, sizeof *m);
-	int64_t *next = NULL;
+	t->row = NULL;
 	if (!m)
 		goto fail;
 	m->rows = rows;
 	m->cols = t->cols;
-	m->rowptr = dw_alloc(err, (size_t)rows + 1, sizeof *m->rowptr);
-	if (!m->rowptr)
-		goto fail;
+	m->col = t->col;
+	t->col = NULL;
 
-	/* Count per row (rowptr[r + 1]), then prefix sums. */
-	for (int64_t k = 0; k < t->count; k++) {
-		m->rowptr[t->row[k] + 1]++;
-		if (mirror && t->row[k] != t->col[k])
-			m->rowptr[t->col[k] + 1]++;
-	}
+	/* 1. The triplets' index arrays become the result's, enlarged for the
+	 * mirrored half (total <= 2 * count: no overflow); values become
+	 * complex and the triplets' value arrays go. */
+	int64_t total = count;
+	if (mirror)
+		for (int64_t k = 0; k < count; k++)
+			total += row[k] != m->col[k];
+	size_t slots = total > 0 ? (size_t)total : 1;
+	int64_t *grown = realloc(row, slots * sizeof *row);
+	if (!grown)
+		goto out_of_memory;
+	row = grown;
+	grown = realloc(m->col, slots * sizeof *m->col);
+	if (!grown)
+		goto out_of_memory;
+	m->col = grown;
+	m->val = dw_alloc(err, slots, sizeof *m->val);
+	if (!m->val)
+		goto fail;
+	for (int64_t k = 0; k < count; k++)
+		m->val[k] = CMPLX(t->re[k], t->im ? t->im[k] : 0.0);
+	mtx_triplets_free(t);
+	int64_t at = count;
+	for (int64_t k = 0; mirror && k < count; k++)
+		if (row[k] != m->col[k]) {
+			row[at] = m->col[k];
+			m->col[at] = row[k];
+			m->val[at] = mirrored(t->symmetry, m->val[k]);
+			at++;
+		}
+
+	/* 2. Row counts, then an in-place bucket sort by row ("American flag
+	 * sort", McIlroy, Bostic and McIlroy, "Engineering Radix Sort",
+	 * Computing Systems 1993): each swap puts one entry into its row. */
+	m->rowptr = dw_alloc(err, (size_t)rows + 1, sizeof *m->rowptr);
+	next = dw_alloc(err, (size_t)rows, sizeof *next);
+	if (!m->rowptr || !next)
+		goto fail;
+	for (int64_t k = 0; k < total; k++)
+		m->rowptr[row[k] + 1]++;
 	for (int64_t r = 0; r < rows; r++)
 		m->rowptr[r + 1] += m->rowptr[r];
-	int64_t total = m->rowptr[rows];   /* <= 2 * count: no overflow */
-
-	m->col = dw_alloc(err, (size_t)total, sizeof *m->col);
-	m->val = dw_alloc(err, (size_t)total, sizeof *m->val);
-	next = dw_alloc(err, (size_t)rows, sizeof *next);
-	if (!m->col || !m->val || !next)
-		goto fail;
 	memcpy(next, m->rowptr, (size_t)rows * sizeof *next);
-	for (int64_t k = 0; k < t->count; k++) {
-		int64_t i = t->row[k], j = t->col[k];
-		double complex v = CMPLX(t->re[k], t->im ? t->im[k] : 0.0);
-		int64_t at = next[i]++;
-		m->col[at] = j;
-		m->val[at] = v;
-		if (mirror && i != j) {
-			at = next[j]++;
-			m->col[at] = i;
-			m->val[at] = mirrored(t->symmetry, v);
+	for (int64_t r = 0; r < rows; r++) {
+		int64_t end = m->rowptr[r + 1];
+		while (next[r] < end) {
+			int64_t k = next[r], bucket = row[k];
+			if (bucket == r)
+				next[r]++;
+			else
+				swap_triple(row, m->col, m->val, k, next[bucket]++);
 		}
 	}
 	free(next);
 	next = NULL;
-	mtx_triplets_free(t);
+	free(row);
+	row = NULL;
 
 	/* Sort each row, sum repeats, compact in place. A repeat in a mirrored
 	 * file shows up twice (once per triangle); count it once. */
@@ -179,11 +217,15 @@ int mtx_compress(mtx_triplets *t, FILE *notices, dw_csr **out, dw_error *err)
 	note_repeats(notices, t->path, repeats);
 	*out = m;
 	return DW_OK;
+out_of_memory:
+	dw_fail(err, DW_EINTERNAL, "out of memory for %lld entries of %s",
+		(long long)total, t->path);
 fail:
 	free(next);
+	free(row);
 	dw_csr_free(m);
 	mtx_triplets_free(t);
-	return err->status ? err->status : DW_EINTERNAL;
+	return DW_EINTERNAL;
 }
 
 int mtx_densify_vector(mtx_triplets *t, FILE *notices, double complex **out,
@@ -198,7 +240,7 @@ int mtx_densify_vector(mtx_triplets *t, FILE *notices, double complex **out,
 	if (!v || (t->format == MTX_COORDINATE && !set)) {
 		free(v);
 		mtx_triplets_free(t);
-		return err->status ? err->status : DW_EINTERNAL;
+		return DW_EINTERNAL;
 	}
 	/* One column: the symmetric kinds can only be 1 x 1 here, so there is
 	 * nothing to mirror. */

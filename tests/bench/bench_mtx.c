@@ -3,7 +3,8 @@
  * Takes: [--keep] [--digits D] [NNZ [ROWS [PATH]]] (defaults 10,000,000
  * nonzeros, 1,000,000 rows, 17 significant digits per value,
  * /tmp/dwell-bench-mtx.mtx); --keep leaves the file behind.
- * Gives: on stdout the file size, the seconds dw_mtx_read_matrix takes, the
+ * Gives: on stdout the file size, the wall and CPU seconds dw_mtx_read_matrix
+ * takes, the
  * peak resident memory (getrusage) before and after, and bytes per nonzero.
  *
  * The matrix is an invented random banded one: each row gets NNZ/ROWS
@@ -41,6 +42,16 @@ static double seconds_now(void)
 	struct timespec ts;
 	clock_gettime(CLOCK_MONOTONIC, &ts);
 	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+/* CPU seconds (user + system) of this process so far: less sensitive than
+ * wall time to other jobs on a shared machine. */
+static double cpu_seconds(void)
+{
+	struct rusage use;
+	getrusage(RUSAGE_SELF, &use);
+	return (double)(use.ru_utime.tv_sec + use.ru_stime.tv_sec)
+		+ 1e-6 * (double)(use.ru_utime.tv_usec + use.ru_stime.tv_usec);
 }
 
 static long peak_rss_kib(void)
@@ -125,9 +136,9 @@ int main(int argc, char **argv)
 
 	dw_csr *m = NULL;
 	dw_error err = {0};
-	double t2 = seconds_now();
+	double c2 = cpu_seconds(), t2 = seconds_now();
 	int st = dw_mtx_read_matrix(path, stderr, &m, &err);
-	double t3 = seconds_now();
+	double t3 = seconds_now(), c3 = cpu_seconds();
 	long rss_after = peak_rss_kib();
 	if (st) {
 		fprintf(stderr, "dwell: %s\n", err.msg);
@@ -137,8 +148,9 @@ int main(int argc, char **argv)
 		path, (double)info.st_size / 1e6, digits, t1 - t0);
 	printf("matrix:          %lld x %lld, %lld nonzeros\n", (long long)m->rows,
 		(long long)m->cols, (long long)m->nnz);
-	printf("read:            %.2f s (%.0f ns per nonzero, %.0f MB/s)\n", t3 - t2,
-		1e9 * (t3 - t2) / (double)m->nnz, (double)info.st_size / 1e6 / (t3 - t2));
+	printf("read:            %.2f s wall, %.2f s CPU (%.0f ns CPU per nonzero, %.0f MB/s)\n",
+		t3 - t2, c3 - c2, 1e9 * (c3 - c2) / (double)m->nnz,
+		(double)info.st_size / 1e6 / (t3 - t2));
 	printf("peak RSS:        %.1f MB before reading, %.1f MB after\n",
 		rss_before / 1024.0, rss_after / 1024.0);
 	printf("bytes/nonzero:   %.1f at peak (growth of peak RSS / nnz); "
