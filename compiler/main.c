@@ -28,6 +28,7 @@ static const command commands[] = {
 	{"diff", dw_cmd_diff, "A.json B.json [--json]  (ledger deltas, per figure and per stage)"},
 	{"check", dw_cmd_check, "LEDGER.json --budget B.yaml  (exit 3 when over budget)"},
 	{"run", dw_cmd_run, "CIRCUIT.qasm [--param name=value]... [--json] [--seed S]"},
+	{"synth", dw_cmd_synth, "ANGLE --precision EPS [--json]  (Clifford+T sequence for rz)"},
 };
 
 static void usage(FILE *f)

@@ -643,14 +643,25 @@ void dw_dw_set_si(dw_domega *r, long c0, long c1, long c2, long c3, long k)
 /* numerator of x scaled to denominator sqrt2^k (k >= x->k) */
 static void dw_scaled_num(dw_zomega *out, const dw_domega *x, long k)
 {
-	dw_zw_set(out, &x->num);
-	for (long i = x->k; i < k; i++)
+	/* sqrt2^d = 2^(d/2), times sqrt2 when d is odd */
+	long d = k - x->k;
+	for (int i = 0; i < 4; i++)
+		mpz_mul_2exp(out->c[i], x->num.c[i], (mp_bitcnt_t)(d / 2));
+	if (d % 2)
 		dw_zw_mul_sqrt2(out, out);
 }
 
 static void dw_addsub(dw_domega *r, const dw_domega *x, const dw_domega *y,
 	int sub)
 {
+	if (dw_zw_is_zero(&y->num) || dw_zw_is_zero(&x->num)) {
+		const dw_domega *nz = dw_zw_is_zero(&y->num) ? x : y;
+		int negate = sub && nz == y;
+		dw_dw_set(r, nz);
+		if (negate)
+			dw_zw_neg(&r->num, &r->num);
+		return;
+	}
 	long k = x->k > y->k ? x->k : y->k;
 	dw_zomega a, b;
 	dw_zw_init(&a);

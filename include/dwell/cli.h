@@ -14,6 +14,7 @@ int dw_cmd_inspect(int argc, char **argv);
 int dw_cmd_diff(int argc, char **argv);
 int dw_cmd_check(int argc, char **argv);
 int dw_cmd_run(int argc, char **argv);
+int dw_cmd_synth(int argc, char **argv);
 
 /* Print "dwell: msg" to stderr and return the status of e. */
 int dw_report(const struct dw_error *e);
