@@ -521,11 +521,15 @@ static int walk_rec(const dw_circuit *c, uint32_t id, const uint32_t *map,
 		}
 		const dw_def *cd = &c->defs[o->callee];
 		size_t nq = (size_t)cd->nargs + cd->pool;
-		uint32_t *sub = malloc((nq ? nq : 1) * sizeof *sub);
-		double *pv = malloc((cd->nparams ? cd->nparams : 1) * sizeof *pv);
+		uint32_t sub_small[128];
+		double pv_small[16];
+		uint32_t *sub = nq <= 128 ? sub_small : malloc(nq * sizeof *sub);
+		double *pv = cd->nparams <= 16 ? pv_small : malloc(cd->nparams * sizeof *pv);
 		if (!sub || !pv) {
-			free(sub);
-			free(pv);
+			if (sub != sub_small)
+				free(sub);
+			if (pv != pv_small)
+				free(pv);
 			return DW_EINTERNAL;
 		}
 		for (uint32_t k = 0; k < cd->nargs; k++)
@@ -537,8 +541,10 @@ static int walk_rec(const dw_circuit *c, uint32_t id, const uint32_t *map,
 		int r = 0;
 		for (uint64_t rep = 0; rep < o->reps && !r; rep++)
 			r = walk_rec(c, o->callee, sub, pv, st, fn, user, depth + 1);
-		free(sub);
-		free(pv);
+		if (sub != sub_small)
+			free(sub);
+		if (pv != pv_small)
+			free(pv);
 		if (r)
 			return r;
 	}

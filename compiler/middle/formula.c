@@ -199,9 +199,10 @@ int dw_formula_bound_prepare(const dw_term *terms, uint32_t m, int order,
 			}
 		}
 	}
-	memcpy(out->w, order == 1 ? w1 : w2, sizeof w2);
 	if (order == 1)
-		out->w[3] = 0;
+		memcpy(out->w, w1, sizeof w1);   /* w[3] stays 0 */
+	else
+		memcpy(out->w, w2, sizeof w2);
 	return DW_OK;
 }
 

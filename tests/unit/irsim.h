@@ -30,10 +30,17 @@ static inline void irsim_init(irsim *s, int nq)
 static inline void irsim_1q(irsim *s, uint32_t q, const double complex m[4],
 	uint64_t cmask)
 {
-	size_t bit = (size_t)1 << q;
-	for (size_t i = 0; i < s->dim; i++) {
-		if (i & bit || (i & cmask) != cmask)
+	size_t bit = (size_t)1 << q, half = s->dim / 2;
+	bool diag = m[1] == 0 && m[2] == 0;
+	for (size_t k = 0; k < half; k++) {
+		size_t i = ((k >> q) << (q + 1)) | (k & (bit - 1));
+		if ((i & cmask) != cmask)
 			continue;
+		if (diag) {
+			s->psi[i] *= m[0];
+			s->psi[i | bit] *= m[3];
+			continue;
+		}
 		double complex a = s->psi[i], b = s->psi[i | bit];
 		s->psi[i] = m[0] * a + m[1] * b;
 		s->psi[i | bit] = m[2] * a + m[3] * b;
