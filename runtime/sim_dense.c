@@ -25,11 +25,11 @@
 #define GAP 160
 
 #ifdef _OPENMP
-#define OMP_FOR _Pragma("omp parallel for schedule(static) if (omp_n >= omp_min)")
-#define OMP_SUM _Pragma("omp parallel for schedule(static) reduction(+:s) if (omp_n >= omp_min)")
+#define OMP_FOR _Pragma("omp parallel for schedule(static) if (omp_work >= omp_min)")
+#define OMP_SUM _Pragma("omp parallel for schedule(static) reduction(+:s) if (omp_work >= omp_min)")
 #else
-#define OMP_FOR
-#define OMP_SUM
+#define OMP_FOR (void)omp_work, (void)omp_min;
+#define OMP_SUM (void)omp_work, (void)omp_min;
 #endif
 
 static const int64_t omp_min = DW_SIM_OMP_MIN;
@@ -58,7 +58,7 @@ static void k_dense(double complex *p0, double complex *p1, uint64_t nk, int t,
 	uint64_t cmask, uint64_t cval, const double complex m[4])
 {
 	const double complex m00 = m[0], m01 = m[1], m10 = m[2], m11 = m[3];
-	const int64_t omp_n = (int64_t)nk;
+	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
 	if (cmask == 0) {
 		OMP_FOR
 		for (int64_t k = 0; k < omp_n; k++) {
@@ -83,7 +83,7 @@ static void k_dense(double complex *p0, double complex *p1, uint64_t nk, int t,
 static void k_diag(double complex *p0, double complex *p1, uint64_t nk, int t,
 	uint64_t cmask, uint64_t cval, double complex d0, double complex d1)
 {
-	const int64_t omp_n = (int64_t)nk;
+	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
 	if (d0 == 1) {
 		OMP_FOR
 		for (int64_t k = 0; k < omp_n; k++) {
@@ -107,7 +107,7 @@ static void k_diag(double complex *p0, double complex *p1, uint64_t nk, int t,
 static void k_anti(double complex *p0, double complex *p1, uint64_t nk, int t,
 	uint64_t cmask, uint64_t cval, double complex m01, double complex m10)
 {
-	const int64_t omp_n = (int64_t)nk;
+	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
 	if (m01 == 1 && m10 == 1) {
 		OMP_FOR
 		for (int64_t k = 0; k < omp_n; k++) {
@@ -135,7 +135,7 @@ static void k_anti(double complex *p0, double complex *p1, uint64_t nk, int t,
 static void k_swap(double complex *p0, double complex *p1, uint64_t nk, int t1, int t2,
 	uint64_t cmask, uint64_t cval)
 {
-	const int64_t omp_n = (int64_t)nk;
+	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
 	OMP_FOR
 	for (int64_t k = 0; k < omp_n; k++) {
 		uint64_t i = ins0(ins0((uint64_t)k, t1), t2);
@@ -154,7 +154,7 @@ static void k_phase(double complex *a, uint64_t m, uint64_t mask, uint64_t val, 
 	uint64_t run = mask ? (uint64_t)1 << low : m;
 	if (run > m)
 		run = m;
-	const int64_t omp_n = (int64_t)(m / run);
+	const int64_t omp_n = (int64_t)(m / run), omp_work = (int64_t)m;
 	if (run == 1) {
 		OMP_FOR
 		for (int64_t k = 0; k < omp_n; k++)
@@ -175,7 +175,7 @@ static void k_phase(double complex *a, uint64_t m, uint64_t mask, uint64_t val, 
 static double k_sum1(const double complex *p1, uint64_t nk, int t)
 {
 	double s = 0;
-	const int64_t omp_n = (int64_t)nk;
+	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
 	OMP_SUM
 	for (int64_t k = 0; k < omp_n; k++)
 		s += norm2(p1[ins0((uint64_t)k, t)]);
@@ -330,7 +330,7 @@ double dw_state_norm2(const dw_state *st)
 		return norm2(st->lo_[0]);
 	uint64_t m = st->dim >> 1;
 	double s = 0;
-	const int64_t omp_n = (int64_t)m;
+	const int64_t omp_n = (int64_t)m, omp_work = 2 * omp_n;
 	const double complex *lo = st->lo_, *hi = st->hi_;
 	OMP_SUM
 	for (int64_t i = 0; i < omp_n; i++)

@@ -10,8 +10,10 @@
  * U carries its e^{iθ/2} factor and gphase multiplies the state, so the
  * state is the program's state, not one equal up to a global phase.
  *
- * Kernels work in place and run over OpenMP threads when the state holds
- * at least DW_SIM_OMP_MIN amplitudes.  While gates are applied the upper
+ * Kernels work in place and run over OpenMP threads when one call spans
+ * at least DW_SIM_OMP_MIN amplitudes (most gates run once per half of the
+ * state, so from 17 qubits on); below that a parallel region costs more
+ * than it saves, and far more when other processes hold the cores.  While gates are applied the upper
  * half of the vector (top qubit = 1) sits a few KiB after the lower half,
  * so that a gate on the top qubit does not stream two arrays whose
  * addresses alias in the cache; dw_state_compact closes the gap.
@@ -29,7 +31,7 @@
 #include "dwell/qasm.h"
 
 #define DW_SIM_MAX_QUBITS 30
-#define DW_SIM_OMP_MIN (1u << 14)
+#define DW_SIM_OMP_MIN (1u << 16)
 
 typedef struct dw_state {
 	int nqubits;

@@ -4,7 +4,7 @@
  * matrix m on qubit t maps the pair (a[i], a[i | 2^t]), bit t of i clear,
  * to (m00 a0 + m01 a1, m10 a0 + m11 a1) where the controls hold).
  *
- * Random states of 15 qubits (2^15 amplitudes, above the OpenMP threshold)
+ * Random states of 17 qubits (2^17 amplitudes, above the OpenMP threshold)
  * and of 3 qubits; every target including the top qubit (stored in a
  * separate half); dense, diagonal, anti-diagonal and X matrices; controls
  * and anti-controls on every side of the target; swaps; controlled
@@ -230,7 +230,7 @@ static void limits(void)
 int main(void)
 {
 	kernels(3);
-	kernels(15);
+	kernels(17);
 	kernels(1);
 	born();
 	limits();
