@@ -445,7 +445,7 @@ void mtx_triplets_free(mtx_triplets *t)
 }
 
 /* Room for one more entry.  The first allocation is `first` entries (what
- * the rest of the file can hold at most); capacity then doubles up to
+ * the file's size can hold at most); capacity then doubles up to
  * `limit` (the declared count), so a lying size line cannot make us
  * allocate ahead of the text. */
 static int reserve_entry(mtx_triplets *t, int64_t limit, int64_t first,
@@ -453,7 +453,8 @@ static int reserve_entry(mtx_triplets *t, int64_t limit, int64_t first,
 {
 	if (t->count < t->capacity)
 		return DW_OK;
-	int64_t grown = t->capacity ? t->capacity * 2 : first;
+	int64_t grown = t->capacity == 0 ? first
+		: t->capacity > limit / 2 ? limit : t->capacity * 2;
 	if (grown > limit)
 		grown = limit;
 	if (grown <= t->count)

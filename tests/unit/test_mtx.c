@@ -20,6 +20,8 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include "dwell/mtx.h"
@@ -618,6 +620,55 @@ static void test_damaged_files(void)
 	remove(path);
 }
 
+/* A file that is not a regular file (a FIFO here): its size is unknown,
+ * so entry storage grows by doubling (4096, 8192, then the declared 10000).
+ * A child process writes a tridiagonal 5000 x 5000 matrix, lower triangle
+ * in a symmetric file, bottom row first. */
+static void test_fifo(void)
+{
+	enum { N = 5000 };
+	char dir[] = "/tmp/dwell-test-mtx-fifo-XXXXXX";
+	CHECK(mkdtemp(dir) != NULL, "mkdtemp failed");
+	char path[64];
+	snprintf(path, sizeof path, "%s/pipe.mtx", dir);
+	CHECK(mkfifo(path, 0600) == 0, "mkfifo failed");
+	fflush(NULL);
+	pid_t child = fork();
+	if (child == 0) {
+		FILE *f = fopen(path, "w");
+		if (!f)
+			_exit(1);
+		fprintf(f, "%%%%MatrixMarket matrix coordinate real symmetric\n%d %d %d\n",
+			N, N, 2 * N - 1);
+		for (int i = N; i >= 1; i--) {
+			fprintf(f, "%d %d 2\n", i, i);
+			if (i > 1)
+				fprintf(f, "%d %d -1\n", i, i - 1);
+		}
+		fclose(f);
+		_exit(0);
+	}
+	dw_csr *m = NULL;
+	dw_error err = {0};
+	int st = dw_mtx_read_matrix(path, NULL, &m, &err);
+	int child_status = -1;
+	waitpid(child, &child_status, 0);
+	CHECK(st == DW_OK, "fifo: %s", err.msg);
+	if (st == DW_OK) {
+		CHECK(m->nnz == 3 * N - 2, "fifo: nnz %lld", (long long)m->nnz);
+		check_csr_shape(m, "fifo");
+		int wrong = 0;
+		for (int64_t r = 0; r < m->rows; r++)
+			for (int64_t k = m->rowptr[r]; k < m->rowptr[r + 1]; k++)
+				wrong += m->val[k] != (m->col[k] == r ? 2.0 : -1.0)
+					|| (m->col[k] != r && m->col[k] != r - 1 && m->col[k] != r + 1);
+		CHECK(wrong == 0, "fifo: %d wrong entries", wrong);
+	}
+	dw_csr_free(m);
+	remove(path);
+	rmdir(dir);
+}
+
 int main(void)
 {
 	test_good_matrices();
@@ -629,5 +680,6 @@ int main(void)
 	test_generated();
 	test_decimal_values();
 	test_damaged_files();
+	test_fifo();
 	return check_done();
 }
