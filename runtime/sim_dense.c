@@ -17,6 +17,9 @@
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
+#ifdef _OPENMP
+#include <omp.h>
+#endif
 
 #include "dwell/sim.h"
 
@@ -25,14 +28,8 @@
 #define GAP 160
 
 #ifdef _OPENMP
-#define OMP_FOR _Pragma("omp parallel for schedule(static) if (omp_work >= omp_min)")
-#define OMP_SUM _Pragma("omp parallel for schedule(static) reduction(+:s) if (omp_work >= omp_min)")
-#else
-#define OMP_FOR (void)omp_work, (void)omp_min;
-#define OMP_SUM (void)omp_work, (void)omp_min;
-#endif
-
 static const int64_t omp_min = DW_SIM_OMP_MIN;
+#endif
 
 static inline double complex cmul(double complex a, double complex b)
 {
@@ -52,134 +49,221 @@ static inline uint64_t ins0(uint64_t k, int t)
 	return ((k & ~low) << 1) | (k & low);
 }
 
-/* ---- pair kernels ---- */
+/* ---- kernels over a range [k0, k1) of their loop ---- */
 
-static void k_dense(double complex *p0, double complex *p1, uint64_t nk, int t,
-	uint64_t cmask, uint64_t cval, const double complex m[4])
+typedef struct kargs {
+	double complex *p0, *p1;
+	int t, t2;                /* bit positions where zeros are inserted */
+	uint64_t cmask, cval;     /* condition on the index */
+	double complex m[4];      /* matrix, or phase in m[0] */
+	uint64_t run;             /* k_phase: length of a run */
+} kargs;
+
+typedef double (*range_fn)(const kargs *a, int64_t k0, int64_t k1);
+
+/* Run fn over [0, n): in one call, or split in contiguous chunks over the
+ * OpenMP threads when the call spans at least omp_min amplitudes.  The
+ * chunks' return values are added in chunk order. */
+static double run_range(range_fn fn, const kargs *a, int64_t n, int64_t work)
 {
-	const double complex m00 = m[0], m01 = m[1], m10 = m[2], m11 = m[3];
-	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
-	if (cmask == 0) {
-		OMP_FOR
-		for (int64_t k = 0; k < omp_n; k++) {
-			uint64_t i = ins0((uint64_t)k, t);
-			double complex a = p0[i], b = p1[i];
-			p0[i] = cmul(m00, a) + cmul(m01, b);
-			p1[i] = cmul(m10, a) + cmul(m11, b);
+#ifdef _OPENMP
+	enum { MAXCHUNK = 256 };
+	if (work >= omp_min && n > 1 && omp_get_max_threads() > 1) {
+		double part[MAXCHUNK] = {0};
+		int chunks = 1;
+#pragma omp parallel
+		{
+			int nt = omp_get_num_threads(), i = omp_get_thread_num();
+			int c = nt < MAXCHUNK ? nt : MAXCHUNK;
+			if (i < c)
+				part[i] = fn(a, n * i / c, n * (i + 1) / c);
+			if (i == 0)
+				chunks = c;
 		}
-		return;
+		double s = 0;
+		for (int i = 0; i < chunks; i++)
+			s += part[i];
+		return s;
 	}
-	OMP_FOR
-	for (int64_t k = 0; k < omp_n; k++) {
+#else
+	(void)work;
+#endif
+	return fn(a, 0, n);
+}
+
+static double r_dense(const kargs *a, int64_t k0, int64_t k1)
+{
+	const double complex m00 = a->m[0], m01 = a->m[1], m10 = a->m[2], m11 = a->m[3];
+	double complex *p0 = a->p0, *p1 = a->p1;
+	const uint64_t cmask = a->cmask, cval = a->cval;
+	const int t = a->t;
+	if (cmask == 0) {
+		for (int64_t k = k0; k < k1; k++) {
+			uint64_t i = ins0((uint64_t)k, t);
+			double complex x = p0[i], y = p1[i];
+			p0[i] = cmul(m00, x) + cmul(m01, y);
+			p1[i] = cmul(m10, x) + cmul(m11, y);
+		}
+		return 0;
+	}
+	for (int64_t k = k0; k < k1; k++) {
 		uint64_t i = ins0((uint64_t)k, t);
 		if ((i & cmask) != cval)
 			continue;
-		double complex a = p0[i], b = p1[i];
-		p0[i] = cmul(m00, a) + cmul(m01, b);
-		p1[i] = cmul(m10, a) + cmul(m11, b);
+		double complex x = p0[i], y = p1[i];
+		p0[i] = cmul(m00, x) + cmul(m01, y);
+		p1[i] = cmul(m10, x) + cmul(m11, y);
 	}
+	return 0;
 }
 
-static void k_diag(double complex *p0, double complex *p1, uint64_t nk, int t,
-	uint64_t cmask, uint64_t cval, double complex d0, double complex d1)
+static double r_diag(const kargs *a, int64_t k0, int64_t k1)
 {
-	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
+	const double complex d0 = a->m[0], d1 = a->m[3];
+	double complex *p0 = a->p0, *p1 = a->p1;
+	const uint64_t cmask = a->cmask, cval = a->cval;
+	const int t = a->t;
 	if (d0 == 1) {
-		OMP_FOR
-		for (int64_t k = 0; k < omp_n; k++) {
+		for (int64_t k = k0; k < k1; k++) {
 			uint64_t i = ins0((uint64_t)k, t);
 			if ((i & cmask) == cval)
 				p1[i] = cmul(d1, p1[i]);
 		}
-		return;
+		return 0;
 	}
-	OMP_FOR
-	for (int64_t k = 0; k < omp_n; k++) {
+	for (int64_t k = k0; k < k1; k++) {
 		uint64_t i = ins0((uint64_t)k, t);
 		if ((i & cmask) != cval)
 			continue;
 		p0[i] = cmul(d0, p0[i]);
 		p1[i] = cmul(d1, p1[i]);
 	}
+	return 0;
 }
 
 /* Anti-diagonal: p0 <- m01 p1, p1 <- m10 p0; a plain exchange for X. */
-static void k_anti(double complex *p0, double complex *p1, uint64_t nk, int t,
-	uint64_t cmask, uint64_t cval, double complex m01, double complex m10)
+static double r_anti(const kargs *a, int64_t k0, int64_t k1)
 {
-	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
+	const double complex m01 = a->m[1], m10 = a->m[2];
+	double complex *p0 = a->p0, *p1 = a->p1;
+	const uint64_t cmask = a->cmask, cval = a->cval;
+	const int t = a->t;
 	if (m01 == 1 && m10 == 1) {
-		OMP_FOR
-		for (int64_t k = 0; k < omp_n; k++) {
+		for (int64_t k = k0; k < k1; k++) {
 			uint64_t i = ins0((uint64_t)k, t);
 			if ((i & cmask) != cval)
 				continue;
-			double complex a = p0[i];
+			double complex x = p0[i];
 			p0[i] = p1[i];
-			p1[i] = a;
+			p1[i] = x;
 		}
-		return;
+		return 0;
 	}
-	OMP_FOR
-	for (int64_t k = 0; k < omp_n; k++) {
+	for (int64_t k = k0; k < k1; k++) {
 		uint64_t i = ins0((uint64_t)k, t);
 		if ((i & cmask) != cval)
 			continue;
-		double complex a = p0[i];
+		double complex x = p0[i];
 		p0[i] = cmul(m01, p1[i]);
-		p1[i] = cmul(m10, a);
+		p1[i] = cmul(m10, x);
 	}
+	return 0;
 }
 
-/* Exchange p0[i] and p1[i], i = k with zeros inserted at t1 < t2. */
+/* Exchange p0[i] and p1[i], i = k with zeros inserted at t < t2. */
+static double r_swap(const kargs *a, int64_t k0, int64_t k1)
+{
+	double complex *p0 = a->p0, *p1 = a->p1;
+	const uint64_t cmask = a->cmask, cval = a->cval;
+	for (int64_t k = k0; k < k1; k++) {
+		uint64_t i = ins0(ins0((uint64_t)k, a->t), a->t2);
+		if ((i & cmask) != cval)
+			continue;
+		double complex x = p0[i];
+		p0[i] = p1[i];
+		p1[i] = x;
+	}
+	return 0;
+}
+
+/* Multiply by m[0] the runs r (of a->run amplitudes) whose start b
+ * satisfies (b & cmask) == cval. */
+static double r_phase(const kargs *a, int64_t k0, int64_t k1)
+{
+	const double complex ph = a->m[0];
+	double complex *p = a->p0;
+	const uint64_t run = a->run, cmask = a->cmask, cval = a->cval;
+	for (int64_t r = k0; r < k1; r++) {
+		uint64_t b = (uint64_t)r * run;
+		if ((b & cmask) != cval)
+			continue;
+		for (uint64_t j = 0; j < run; j++)
+			p[b + j] = cmul(ph, p[b + j]);
+	}
+	return 0;
+}
+
+static double r_sum1(const kargs *a, int64_t k0, int64_t k1)
+{
+	double s = 0;
+	for (int64_t k = k0; k < k1; k++)
+		s += norm2(a->p1[ins0((uint64_t)k, a->t)]);
+	return s;
+}
+
+static double r_norm(const kargs *a, int64_t k0, int64_t k1)
+{
+	double s = 0;
+	for (int64_t k = k0; k < k1; k++)
+		s += norm2(a->p0[k]) + norm2(a->p1[k]);
+	return s;
+}
+
+/* ---- pair kernels: nk pairs (p0[i], p1[i]), i = k with a zero at t ---- */
+
+static void k_dense(double complex *p0, double complex *p1, uint64_t nk, int t,
+	uint64_t cmask, uint64_t cval, const double complex m[4])
+{
+	kargs a = {p0, p1, t, 0, cmask, cval, {m[0], m[1], m[2], m[3]}, 0};
+	run_range(r_dense, &a, (int64_t)nk, 2 * (int64_t)nk);
+}
+
+static void k_diag(double complex *p0, double complex *p1, uint64_t nk, int t,
+	uint64_t cmask, uint64_t cval, double complex d0, double complex d1)
+{
+	kargs a = {p0, p1, t, 0, cmask, cval, {d0, 0, 0, d1}, 0};
+	run_range(r_diag, &a, (int64_t)nk, 2 * (int64_t)nk);
+}
+
+static void k_anti(double complex *p0, double complex *p1, uint64_t nk, int t,
+	uint64_t cmask, uint64_t cval, double complex m01, double complex m10)
+{
+	kargs a = {p0, p1, t, 0, cmask, cval, {0, m01, m10, 0}, 0};
+	run_range(r_anti, &a, (int64_t)nk, 2 * (int64_t)nk);
+}
+
 static void k_swap(double complex *p0, double complex *p1, uint64_t nk, int t1, int t2,
 	uint64_t cmask, uint64_t cval)
 {
-	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
-	OMP_FOR
-	for (int64_t k = 0; k < omp_n; k++) {
-		uint64_t i = ins0(ins0((uint64_t)k, t1), t2);
-		if ((i & cmask) != cval)
-			continue;
-		double complex a = p0[i];
-		p0[i] = p1[i];
-		p1[i] = a;
-	}
+	kargs a = {p0, p1, t1, t2, cmask, cval, {0, 0, 0, 0}, 0};
+	run_range(r_swap, &a, (int64_t)nk, 4 * (int64_t)nk);
 }
 
-/* Multiply a[i] by ph where (i & mask) == val, over runs of 2^ctz(mask). */
-static void k_phase(double complex *a, uint64_t m, uint64_t mask, uint64_t val, double complex ph)
+/* Multiply p[i] by ph where (i & mask) == val, i < m, over runs of
+ * 2^ctz(mask) amplitudes. */
+static void k_phase(double complex *p, uint64_t m, uint64_t mask, uint64_t val, double complex ph)
 {
-	int low = mask ? __builtin_ctzll(mask) : 0;
-	uint64_t run = mask ? (uint64_t)1 << low : m;
+	uint64_t run = mask ? (uint64_t)1 << __builtin_ctzll(mask) : m;
 	if (run > m)
 		run = m;
-	const int64_t omp_n = (int64_t)(m / run), omp_work = (int64_t)m;
-	if (run == 1) {
-		OMP_FOR
-		for (int64_t k = 0; k < omp_n; k++)
-			if (((uint64_t)k & mask) == val)
-				a[k] = cmul(ph, a[k]);
-		return;
-	}
-	OMP_FOR
-	for (int64_t r = 0; r < omp_n; r++) {
-		uint64_t b = (uint64_t)r * run;
-		if ((b & mask) != val)
-			continue;
-		for (uint64_t j = 0; j < run; j++)
-			a[b + j] = cmul(ph, a[b + j]);
-	}
+	kargs a = {p, NULL, 0, 0, mask, val, {ph, 0, 0, 0}, run};
+	run_range(r_phase, &a, (int64_t)(m / run), (int64_t)m);
 }
 
 static double k_sum1(const double complex *p1, uint64_t nk, int t)
 {
-	double s = 0;
-	const int64_t omp_n = (int64_t)nk, omp_work = 2 * omp_n;
-	OMP_SUM
-	for (int64_t k = 0; k < omp_n; k++)
-		s += norm2(p1[ins0((uint64_t)k, t)]);
-	return s;
+	kargs a = {NULL, (double complex *)p1, t, 0, 0, 0, {0, 0, 0, 0}, 0};
+	return run_range(r_sum1, &a, (int64_t)nk, 2 * (int64_t)nk);
 }
 
 /* ---- state ---- */
@@ -329,13 +413,8 @@ double dw_state_norm2(const dw_state *st)
 	if (st->nqubits == 0)
 		return norm2(st->lo_[0]);
 	uint64_t m = st->dim >> 1;
-	double s = 0;
-	const int64_t omp_n = (int64_t)m, omp_work = 2 * omp_n;
-	const double complex *lo = st->lo_, *hi = st->hi_;
-	OMP_SUM
-	for (int64_t i = 0; i < omp_n; i++)
-		s += norm2(lo[i]) + norm2(hi[i]);
-	return s;
+	kargs a = {st->lo_, st->hi_, 0, 0, 0, 0, {0, 0, 0, 0}, 0};
+	return run_range(r_norm, &a, (int64_t)m, 2 * (int64_t)m);
 }
 
 /* The halves that satisfy the top-qubit part of a condition: calls back
