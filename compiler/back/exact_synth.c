@@ -122,16 +122,62 @@ void dw_dmat2_gate(dw_dmat2 *m, dw_sq_gate g)
 	}
 }
 
+/* m <- g m, by row operations (cheaper than a general product) */
+static void dmat2_apply_left(dw_dmat2 *m, dw_sq_gate g)
+{
+	switch (g) {
+	case DW_SQ_H:
+		for (int c = 0; c < 2; c++) {
+			dw_domega s, d;
+			dw_dw_init(&s);
+			dw_dw_init(&d);
+			dw_dw_add(&s, &m->e[0][c], &m->e[1][c]);
+			dw_dw_sub(&d, &m->e[0][c], &m->e[1][c]);
+			s.k++;
+			d.k++;
+			dw_dw_reduce(&s);
+			dw_dw_reduce(&d);
+			dw_dw_set(&m->e[0][c], &s);
+			dw_dw_set(&m->e[1][c], &d);
+			dw_dw_clear(&s);
+			dw_dw_clear(&d);
+		}
+		break;
+	case DW_SQ_S:
+	case DW_SQ_SDG:
+	case DW_SQ_T:
+	case DW_SQ_TDG:
+	case DW_SQ_Z: {
+		int j = g == DW_SQ_S ? 2 : g == DW_SQ_SDG ? 6 : g == DW_SQ_T ? 1
+			: g == DW_SQ_TDG ? 7 : 4;
+		for (int c = 0; c < 2; c++)
+			dw_dw_mul_omega_pow(&m->e[1][c], &m->e[1][c], j);
+		break;
+	}
+	case DW_SQ_X:
+	case DW_SQ_Y:
+		for (int c = 0; c < 2; c++) {
+			dw_domega t;
+			dw_dw_init(&t);
+			dw_dw_set(&t, &m->e[0][c]);
+			dw_dw_set(&m->e[0][c], &m->e[1][c]);
+			dw_dw_set(&m->e[1][c], &t);
+			dw_dw_clear(&t);
+			if (g == DW_SQ_Y) {
+				/* Y = [[0, -i], [i, 0]] */
+				dw_dw_mul_omega_pow(&m->e[0][c], &m->e[0][c], 6);
+				dw_dw_mul_omega_pow(&m->e[1][c], &m->e[1][c], 2);
+			}
+		}
+		break;
+	}
+}
+
 void dw_dmat2_circuit(dw_dmat2 *m, const dw_sq_gate *g, size_t n)
 {
-	dw_dmat2 gm;
-	dw_dmat2_init(&gm);
 	dw_dmat2_identity(m);
-	for (size_t i = 0; i < n; i++) {
-		dw_dmat2_gate(&gm, g[i]);
-		dw_dmat2_mul(m, &gm, m);
-	}
-	dw_dmat2_clear(&gm);
+	for (size_t i = 0; i < n; i++)
+		dmat2_apply_left(m, g[i]);
 }
 
 int dw_dmat2_equal_phase(const dw_dmat2 *a, const dw_dmat2 *b, int *j)

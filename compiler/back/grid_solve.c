@@ -518,7 +518,8 @@ void dw_grid_destroy(dw_grid *g)
 	free(g);
 }
 
-int dw_grid_create(dw_grid **out, double theta, double eps, dw_error *err)
+int dw_grid_create(dw_grid **out, double theta, int shift, double eps,
+	dw_error *err)
 {
 	*out = NULL;
 	if (!isfinite(theta) || !(eps > 0) || !(eps < 1))
@@ -537,6 +538,12 @@ int dw_grid_create(dw_grid **out, double theta, double eps, dw_error *err)
 
 	mpfr_sqrt_ui(g->rt2, 2, MPFR_RNDN);
 	mpfr_set_d(t, theta, MPFR_RNDN);            /* exact: theta is binary */
+	if (shift) {
+		mpfr_const_pi(r, MPFR_RNDN);
+		mpfr_mul_si(r, r, shift, MPFR_RNDN);
+		mpfr_div_2ui(r, r, 2, MPFR_RNDN);
+		mpfr_sub(t, t, r, MPFR_RNDN);
+	}
 	mpfr_div_2ui(t, t, 1, MPFR_RNDN);
 	mpfr_sin_cos(g->zi, g->zr, t, MPFR_RNDN);
 	mpfr_neg(g->zi, g->zi, MPFR_RNDN);          /* z = e^{-i theta/2} */

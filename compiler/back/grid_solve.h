@@ -29,7 +29,10 @@ int dw_grid1_solve(const mpfr_t x0, const mpfr_t x1, const mpfr_t y0,
 
 typedef struct dw_grid dw_grid;
 
-int dw_grid_create(dw_grid **out, double theta, double eps, dw_error *err);
+/* The target angle is theta - shift * pi/4 (shift 0 or 1), computed in
+ * MPFR from the exact binary value of theta. */
+int dw_grid_create(dw_grid **out, double theta, int shift, double eps,
+	dw_error *err);
 void dw_grid_destroy(dw_grid *g);
 
 /* Enumerate the candidates of exponent k (each point once; points

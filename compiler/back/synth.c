@@ -111,6 +111,7 @@ static int try_pi4_multiple(double theta, double eps, dw_synth_result *out,
 
 typedef struct search_ctx {
 	dw_grid *grid;
+	int shift;                  /* 1: approximate rz(theta - pi/4), then T */
 	int k;
 	uint32_t effort;
 	uint32_t candidates;
@@ -159,6 +160,15 @@ static int visit_candidate(const dw_zomega *a, void *user)
 		dw_zw_conj(&ad, &t);
 		dw_zw_neg(&ad, &ad);
 		dw_dw_set_zw(&u.e[0][1], &ad, c->k);
+		if (c->shift) {
+			/* rz(theta) = rz(theta - pi/4) rz(pi/4)
+			 *           = e^{-i pi/8} rz(theta - pi/4) T */
+			dw_dmat2 tg;
+			dw_dmat2_init(&tg);
+			dw_dmat2_gate(&tg, DW_SQ_T);
+			dw_dmat2_mul(&u, &u, &tg);
+			dw_dmat2_clear(&tg);
+		}
 		int phase = 0;
 		dw_sq_gate *gates = NULL;
 		size_t n = 0;
@@ -172,7 +182,8 @@ static int visit_candidate(const dw_zomega *a, void *user)
 				tc += gates[i] == DW_SQ_T || gates[i] == DW_SQ_TDG;
 			c->out->t_count = tc;
 			c->out->error = dw_grid_error(c->grid, a, c->k);
-			c->out->global_phase = norm_phase(phase * acos(-1.0) / 4);
+			c->out->global_phase = norm_phase(phase * acos(-1.0) / 4
+				- c->shift * acos(-1.0) / 8);
 			c->out->denom_exp = c->k;
 			c->found = 1;
 		}
@@ -187,6 +198,33 @@ done:
 	dw_zw_clear(&t);
 	dw_zw_clear(&ad);
 	return stop;
+}
+
+/* One search over k = 0 .. kmax for the target rz(theta - shift pi/4). */
+static int search(double theta, int shift, double eps, const dw_synth_options *opt,
+	int kmax, dw_synth_result *out, int *found, uint32_t *candidates, dw_error *err)
+{
+	dw_grid *grid = NULL;
+	int st = dw_grid_create(&grid, theta, shift, eps, err);
+	if (st != DW_OK)
+		return st;
+	search_ctx c = {grid, shift, 0, opt->factor_effort, 0, 0, 0, err, out};
+	for (int k = 0; k <= kmax && !c.found && !c.failed; k++) {
+		c.k = k;
+		int lr = dw_grid_level(grid, k, 2000000, visit_candidate, &c);
+		if (lr < 0 && !c.found) {
+			dw_grid_destroy(grid);
+			return dw_fail(err, DW_EINTERNAL,
+				"synth: too many grid points at exponent %d (angle %.17g, eps %g)",
+				k, theta, eps);
+		}
+	}
+	*candidates += c.candidates;
+	dw_grid_destroy(grid);
+	if (c.failed)
+		return err && err->status ? err->status : DW_EINTERNAL;
+	*found = c.found;
+	return DW_OK;
 }
 
 int dw_synth_rz_opt(double theta, double eps, const dw_synth_options *opt,
@@ -208,31 +246,39 @@ int dw_synth_rz_opt(double theta, double eps, const dw_synth_options *opt,
 	if (r > 0)
 		return DW_OK;
 
-	dw_grid *grid = NULL;
-	int st = dw_grid_create(&grid, theta, eps, err);
-	if (st != DW_OK)
-		return st;
 	int kmax = opt->max_denom_exp > 0 ? opt->max_denom_exp
 		: (int)(2.0 * log2(1.0 / eps)) + 40;
-	search_ctx c = {grid, 0, opt->factor_effort, 0, 0, 0, err, out};
-	for (int k = 0; k <= kmax && !c.found && !c.failed; k++) {
-		c.k = k;
-		int lr = dw_grid_level(grid, k, 2000000, visit_candidate, &c);
-		if (lr < 0 && !c.found) {
-			dw_grid_destroy(grid);
-			return dw_fail(err, DW_EINTERNAL,
-				"synth: too many grid points at exponent %d (angle %.17g, eps %g)",
-				k, theta, eps);
+	/* Two searches: U ~ rz(theta) directly, and U ~ rz(theta - pi/4)
+	 * followed by T (the other class up to global phase); the smaller
+	 * T-count wins.  The second search stops at the first one's exponent. */
+	dw_synth_result best;
+	memset(&best, 0, sizeof best);
+	int have = 0;
+	uint32_t candidates = 0;
+	for (int shift = 0; shift < 2; shift++) {
+		dw_synth_result r;
+		memset(&r, 0, sizeof r);
+		int found = 0;
+		int st = search(theta, shift, eps, opt, have ? best.denom_exp : kmax,
+			&r, &found, &candidates, err);
+		if (st != DW_OK) {
+			dw_synth_result_free(&best);
+			return st;
+		}
+		if (found && (!have || r.t_count < best.t_count)) {
+			dw_synth_result_free(&best);
+			best = r;
+			have = 1;
+		} else {
+			dw_synth_result_free(&r);
 		}
 	}
-	out->candidates = c.candidates;
-	dw_grid_destroy(grid);
-	if (c.failed)
-		return err && err->status ? err->status : DW_EINTERNAL;
-	if (!c.found)
+	if (!have)
 		return dw_fail(err, DW_EINTERNAL,
 			"synth: no solution up to exponent %d (angle %.17g, eps %g)",
 			kmax, theta, eps);
+	*out = best;
+	out->candidates = candidates;
 	return DW_OK;
 }
 

@@ -392,7 +392,7 @@ static void test_grid2(void)
 		double eps = 0.3 + 0.2 * (double)rng_unit();
 		dw_grid *g = NULL;
 		dw_error err = {0};
-		CHECK(dw_grid_create(&g, theta, eps, &err) == DW_OK, "grid: %s", err.msg);
+		CHECK(dw_grid_create(&g, theta, 0, eps, &err) == DW_OK, "grid: %s", err.msg);
 		if (!g)
 			continue;
 		cld z = cexpl(-I * (long double)theta / 2);
