@@ -222,7 +222,8 @@ static void push_op(dw_builder *b, dw_op op, const uint32_t *qs, const dw_expr *
 			}
 	op.q = (uint32_t)d->nqs;
 	op.a = (uint32_t)d->nex;
-	memcpy(d->qs + d->nqs, qs, op.nq * sizeof *qs);
+	if (op.nq)
+		memcpy(d->qs + d->nqs, qs, op.nq * sizeof *qs);
 	for (uint32_t i = 0; i < op.na; i++)
 		d->ex[d->nex + i] = expr_canon(ex[i]);
 	d->nqs += op.nq;
@@ -310,8 +311,10 @@ static uint64_t def_hash(const dw_def *d)
 		const dw_op *o = &d->ops[i];
 		uint64_t w[4] = {o->kind, o->gate, o->callee, o->reps};
 		h = fnv(h, w, sizeof w);
-		h = fnv(h, d->qs + o->q, o->nq * sizeof *d->qs);
-		h = fnv(h, d->ex + o->a, o->na * sizeof *d->ex);
+		if (o->nq)
+			h = fnv(h, d->qs + o->q, o->nq * sizeof *d->qs);
+		if (o->na)
+			h = fnv(h, d->ex + o->a, o->na * sizeof *d->ex);
 	}
 	return h;
 }
@@ -328,8 +331,8 @@ static bool def_equal(const dw_def *a, const dw_def *b)
 		    x->reps != y->reps || x->nq != y->nq || x->na != y->na)
 			return false;
 	}
-	return !memcmp(a->qs, b->qs, a->nqs * sizeof *a->qs) &&
-	       !memcmp(a->ex, b->ex, a->nex * sizeof *a->ex);
+	return (a->nqs == 0 || !memcmp(a->qs, b->qs, a->nqs * sizeof *a->qs)) &&
+	       (a->nex == 0 || !memcmp(a->ex, b->ex, a->nex * sizeof *a->ex));
 }
 
 static int table_insert(dw_circuit *c, uint32_t id)
