@@ -97,7 +97,7 @@ typedef struct lin { double u, v; } lin;   /* u (1-s) + v s */
 
 static lin coef(const dw_term *t)
 {
-	return (lin){fabs(t->ca) / 2, fabs(t->cb) / 2};
+	return (lin){fabs(t->ca) / 2 * t->norm, fabs(t->cb) / 2 * t->norm};
 }
 
 /* Multiply polynomials in the basis (1-s)^(d-i) s^i. */
@@ -157,7 +157,7 @@ int dw_formula_bound_prepare(const dw_term *terms, uint32_t m, int order,
 			lin cl = coef(tl);
 			/* inner [H_l, H_j] */
 			double inner = 2.0;      /* ||[P, Q]|| <= 2 ||P|| ||Q|| */
-			bool exact = gl == gj;
+			bool exact = gl == gj && tl->pauli && tj->pauli;
 			dw_pauli prod = {tl->p.x ^ tj->p.x, tl->p.z ^ tj->p.z};
 			if (exact && dw_pauli_commute(tl->p, tj->p))
 				inner = 0.0;
@@ -176,7 +176,7 @@ int dw_formula_bound_prepare(const dw_term *terms, uint32_t m, int order,
 				const dw_term *tk = &terms[k % m];
 				int gk = (int)(k / m);
 				double outer = 2.0;
-				if (exact && gk == gj && dw_pauli_commute(tk->p, prod))
+				if (exact && gk == gj && tk->pauli && dw_pauli_commute(tk->p, prod))
 					outer = 0.0;
 				if (outer == 0.0)
 					continue;

@@ -33,7 +33,7 @@ typedef struct ctx {
 static int add_term(dw_program *pg, dw_pauli p, double ca, double cb, dw_error *e)
 {
 	for (size_t i = 0; i < pg->nterms; i++)
-		if (pg->terms[i].p.x == p.x && pg->terms[i].p.z == p.z) {
+		if (pg->terms[i].pauli && pg->terms[i].p.x == p.x && pg->terms[i].p.z == p.z) {
 			pg->terms[i].ca += ca;
 			pg->terms[i].cb += cb;
 			return DW_OK;
@@ -42,7 +42,14 @@ static int add_term(dw_program *pg, dw_pauli p, double ca, double cb, dw_error *
 	if (!t)
 		return dw_fail(e, DW_EINTERNAL, "out of memory (terms)");
 	pg->terms = t;
-	pg->terms[pg->nterms++] = (dw_term){p, ca, cb};
+	dw_term *n = &pg->terms[pg->nterms++];
+	memset(n, 0, sizeof *n);
+	n->p = p;
+	n->pauli = true;
+	n->ca = ca;
+	n->cb = cb;
+	n->norm = 1.0;
+	n->def = DW_NO_DEF;
 	return DW_OK;
 }
 
@@ -58,6 +65,12 @@ static int build_terms(dw_program *pg, dw_error *e)
 			return e->status;
 	} else if (add_term(pg, xa, 1.0, 0.0, e)) {
 		return e->status;
+	}
+	if (p->matrix_kind != DW_MATRIX_PAULI) {
+		dw_layout lay = {p->variant, 0, ind ? 1 : 0, sys0, (uint32_t)p->n, pg->nqubits};
+		dw_term_builder build = p->matrix_kind == DW_MATRIX_FILE ? dw_sparse_terms
+			: dw_stencil_terms;
+		return build(p, &lay, pg->circ, &pg->terms, &pg->nterms, e);
 	}
 	for (size_t k = 0; k < p->npauli; k++) {
 		dw_pauli t = xa;
@@ -78,7 +91,7 @@ static int build_terms(dw_program *pg, dw_error *e)
 	/* drop terms that cancelled */
 	size_t w = 0;
 	for (size_t i = 0; i < pg->nterms; i++)
-		if (pg->terms[i].ca != 0.0 || pg->terms[i].cb != 0.0)
+		if (pg->terms[i].ca != 0.0 || pg->terms[i].cb != 0.0 || !pg->terms[i].pauli)
 			pg->terms[w++] = pg->terms[i];
 	pg->nterms = w;
 	return DW_OK;
@@ -109,9 +122,13 @@ static void emit_items(ctx *x, dw_builder *b, size_t lo, size_t hi, double last_
 		ang.c[0] = f * t->ca;
 		ang.p[1] = 1;
 		ang.c[1] = f * t->cb;
-		uint32_t sup[64];
-		dw_pauli_support(t->p, sup);
-		dw_call(b, x->rot[v[i].term], sup, &ang, 1);
+		if (t->pauli) {
+			uint32_t sup[64];
+			dw_pauli_support(t->p, sup);
+			dw_call(b, x->rot[v[i].term], sup, &ang, 1);
+		} else {
+			dw_call(b, t->def, t->q, &ang, 1);
+		}
 	}
 	if (in_r)
 		dw_call(b, x->reflect, all, NULL, 1);
@@ -203,6 +220,10 @@ static int build_circuit(ctx *x)
 	if (!x->rot)
 		return dw_fail(e, DW_EINTERNAL, "out of memory");
 	for (size_t k = 0; k < pg->nterms; k++) {
+		if (!pg->terms[k].pauli) {
+			x->rot[k] = pg->terms[k].def;
+			continue;
+		}
 		x->rot[k] = dw_pauli_rotation_def(x->c, pg->terms[k].p, e);
 		if (x->rot[k] == DW_NO_DEF)
 			return e->status;
@@ -277,9 +298,6 @@ int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 	out->order = p->order;
 	if (!p->analysed)
 		return dw_fail(e, DW_EINTERNAL, "internal: problem not analysed");
-	if (p->matrix_kind != DW_MATRIX_PAULI)
-		return dw_fail(e, DW_EINPUT, "%s: only matrix.pauli problems can be compiled "
-			"so far (explicit and stencil matrices are not lowered yet)", p->path);
 	if (p->gates != DW_GATES_CONTINUOUS)
 		return dw_fail(e, DW_EINPUT, "%s: target.gates: clifford+t lowering is not "
 			"implemented yet; use continuous", p->path);
@@ -303,6 +321,9 @@ int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 	out->nreg = r;
 
 	dw_error_budget_split(p, &out->budget);
+	out->circ = dw_circuit_new();
+	if (!out->circ)
+		return dw_fail(e, DW_EINTERNAL, "out of memory");
 	if (build_terms(out, e))
 		return e->status;
 	uint64_t seed = p->seed + (uint64_t)instance - 1;
@@ -347,11 +368,8 @@ int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 			(uint64_t)sg->steps, &of);
 	}
 	if (rc == DW_OK) {
-		x.c = out->circ = dw_circuit_new();
-		if (!x.c)
-			rc = dw_fail(e, DW_EINTERNAL, "out of memory");
-		else
-			rc = build_circuit(&x);
+		x.c = out->circ;
+		rc = build_circuit(&x);
 	}
 	free(x.items.v);
 	free(x.rot);

@@ -19,12 +19,38 @@ typedef struct dw_pauli {
 
 int dw_pauli_commute(dw_pauli a, dw_pauli b);
 
-/* A term of K(s)/2 = X_anc (x) A(s) / 2: coefficient (ca (1-s) + cb s)/2
- * times the Pauli string p (p includes the X on anc). */
+/* A term of K(s) = X_anc (x) A(s): coefficient (ca (1-s) + cb s) times an
+ * operator T with ||T|| <= norm.  Either a Pauli string p (def ==
+ * DW_NO_DEF: the rotation is built from p, and commutators with other
+ * Pauli terms are exact), or a definition `def` with one parameter theta
+ * that applies exp(-i theta/2 T) to the top-level qubits q[0..nq) (plus its
+ * own clean ancillas).  The product formula uses the terms of K(s)/2. */
 typedef struct dw_term {
-	dw_pauli p;
+	dw_pauli p;           /* valid when pauli is true */
+	bool pauli;
 	double ca, cb;
+	double norm;          /* ||T||: 1 for Pauli strings */
+	uint32_t def;         /* DW_NO_DEF for Pauli terms */
+	uint32_t nq;          /* def terms: qubits of the call */
+	uint32_t q[64];
 } dw_term;
+
+/* Top-level qubit layout: anc = 0, sgn = 1 (variant I), sys from sys0. */
+typedef struct dw_layout {
+	char variant;
+	uint32_t anc, sgn, sys0, n, nqubits;
+} dw_layout;
+
+/* Terms of X_anc (x) [X_sgn (x)] A/alpha for non-Pauli matrices (explicit:
+ * sparse.c; stencil: stencil.c), appended to *terms with ca = 0, cb = 1
+ * (or the entry scale).  Defined by the files that lower those matrices. */
+typedef int (*dw_term_builder)(const dw_problem *p, const dw_layout *lay,
+	dw_circuit *c, dw_term **terms, size_t *nterms, dw_error *e);
+
+int dw_sparse_terms(const dw_problem *p, const dw_layout *lay, dw_circuit *c,
+	dw_term **terms, size_t *nterms, dw_error *e);
+int dw_stencil_terms(const dw_problem *p, const dw_layout *lay, dw_circuit *c,
+	dw_term **terms, size_t *nterms, dw_error *e);
 
 /* ---- schedule (schedule.c) ---- */
 typedef struct dw_segment {
