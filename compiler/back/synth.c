@@ -292,7 +292,8 @@ int dw_synth_rz(double theta, double eps, dw_synth_result *out, dw_error *err)
 typedef struct cache_slot {
 	uint64_t theta_bits, eps_bits;
 	int used;
-	dw_synth_result res;
+	dw_synth_result *res;       /* own allocation: stays put when the
+	                               table grows */
 } cache_slot;
 
 struct dw_synth_cache {
@@ -337,8 +338,10 @@ void dw_synth_cache_destroy(dw_synth_cache *c)
 	if (!c)
 		return;
 	for (size_t i = 0; i < c->cap; i++)
-		if (c->slot[i].used)
-			dw_synth_result_free(&c->slot[i].res);
+		if (c->slot[i].used) {
+			dw_synth_result_free(c->slot[i].res);
+			free(c->slot[i].res);
+		}
 	free(c->slot);
 	free(c);
 }
@@ -377,7 +380,7 @@ int dw_synth_cache_rz(dw_synth_cache *c, double theta, double eps,
 	cache_slot *s = cache_find(c, tb, eb);
 	if (s->used) {
 		c->hits++;
-		*out = &s->res;
+		*out = s->res;
 		return DW_OK;
 	}
 	if (2 * (c->size + 1) > c->cap) {
@@ -386,14 +389,20 @@ int dw_synth_cache_rz(dw_synth_cache *c, double theta, double eps,
 			return st;
 		s = cache_find(c, tb, eb);
 	}
-	int st = dw_synth_rz(theta, eps, &s->res, err);
-	if (st != DW_OK)
+	dw_synth_result *res = dw_alloc(err, 1, sizeof *res);
+	if (!res)
+		return DW_EINTERNAL;
+	int st = dw_synth_rz(theta, eps, res, err);
+	if (st != DW_OK) {
+		free(res);
 		return st;
+	}
 	s->used = 1;
 	s->theta_bits = tb;
 	s->eps_bits = eb;
+	s->res = res;
 	c->size++;
-	*out = &s->res;
+	*out = res;
 	return DW_OK;
 }
 

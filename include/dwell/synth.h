@@ -65,7 +65,8 @@ int dw_synth_rz(double theta, double eps, dw_synth_result *out, dw_error *err);
 void dw_synth_result_free(dw_synth_result *r);
 
 /* A cache of results by (theta, eps) bit patterns, for lowering programs
- * where angles recur.  Results stay owned by the cache. */
+ * where angles recur.  Results stay owned by the cache; the pointers it
+ * hands out stay valid until dw_synth_cache_destroy. */
 typedef struct dw_synth_cache dw_synth_cache;
 
 dw_synth_cache *dw_synth_cache_create(dw_error *err);

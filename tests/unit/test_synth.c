@@ -542,6 +542,17 @@ static void test_bad_input_and_cache(void)
 	dw_synth_cache_rz(c, 0.123, 1e-6, &a, &err);
 	dw_synth_cache_rz(c, 0.123, 1e-6, &b, &err);
 	CHECK(a == b, "same entry returned");
+	/* earlier results stay valid while the table grows */
+	dw_sq_gate first[400];
+	size_t nfirst = a->count < 400 ? a->count : 400;
+	memcpy(first, a->gates, nfirst * sizeof *first);
+	for (int i = 0; i < 150; i++) {
+		CHECK(dw_synth_cache_rz(c, 1.0 + 0.01 * i, 1e-2, &b, &err) == DW_OK, "grow %d", i);
+	}
+	CHECK(dw_synth_cache_size(c) == 191, "191 entries (%zu)", dw_synth_cache_size(c));
+	CHECK(a->count == nfirst && !memcmp(first, a->gates, nfirst * sizeof *first),
+		"old result intact after growth");
+	check_rotation(0.123, 1e-6, a, NULL);
 	dw_synth_cache_destroy(c);
 }
 
