@@ -1,5 +1,5 @@
-/* grid_solve.c - one- and two-dimensional grid problems over Z[sqrt2] and
- * Z[omega] for z-rotation synthesis.
+/* grid_solve.c - the two-dimensional grid problem over Z[omega] for
+ * z-rotation synthesis (the one-dimensional one is in grid_1d.c).
  *
  * Takes: theta, eps; a denominator exponent k.  Gives: the candidates a in
  * Z[omega] with a in sqrt2^k E and a_bullet in sqrt2^k D (E an ellipse
