@@ -155,7 +155,7 @@ static int parse_unary(qx_parser *p, int *out);
 
 static int parse_primary(qx_parser *p, int *out)
 {
-	const qx_token *t = &p->tok[p->pos];
+	const qx_token *t = qx_cur(p);
 	if (t->kind == QT_INT || t->kind == QT_FLOAT) {
 		p->pos++;
 		qx_expr n = {QE_NUM, 0, -1, -1, -1, t->num, t->line, t->col};
@@ -167,8 +167,8 @@ static int parse_primary(qx_parser *p, int *out)
 		int st = qx_parse_expr(p, out);
 		if (st)
 			return st;
-		if (!qx_is(&p->tok[p->pos], ")"))
-			return qx_error_at(p, &p->tok[p->pos], "expected ')'");
+		if (!qx_is(qx_cur(p), ")"))
+			return qx_error_at(p, qx_cur(p), "expected ')'");
 		p->pos++;
 		return DW_OK;
 	}
@@ -183,16 +183,16 @@ static int parse_primary(qx_parser *p, int *out)
 		}
 	for (size_t i = 0; i < sizeof functions / sizeof functions[0]; i++)
 		if (qx_is(t, functions[i].name)) {
-			if (!qx_is(&p->tok[p->pos], "("))
-				return qx_error_at(p, &p->tok[p->pos], "expected '(' after %s",
+			if (!qx_is(qx_cur(p), "("))
+				return qx_error_at(p, qx_cur(p), "expected '(' after %s",
 					functions[i].name);
 			p->pos++;
 			int a;
 			int st = qx_parse_expr(p, &a);
 			if (st)
 				return st;
-			if (!qx_is(&p->tok[p->pos], ")"))
-				return qx_error_at(p, &p->tok[p->pos], "expected ')'");
+			if (!qx_is(qx_cur(p), ")"))
+				return qx_error_at(p, qx_cur(p), "expected ')'");
 			p->pos++;
 			return make(p, t, QE_FN, functions[i].fn, a, -1, out);
 		}
@@ -221,7 +221,7 @@ static int parse_power(qx_parser *p, int *out)
 	int st = parse_primary(p, out);
 	if (st)
 		return st;
-	const qx_token *t = &p->tok[p->pos];
+	const qx_token *t = qx_cur(p);
 	if (!qx_is(t, "**"))
 		return DW_OK;
 	p->pos++;
@@ -234,7 +234,7 @@ static int parse_power(qx_parser *p, int *out)
 
 static int parse_unary(qx_parser *p, int *out)
 {
-	const qx_token *t = &p->tok[p->pos];
+	const qx_token *t = qx_cur(p);
 	if (qx_is(t, "-") || qx_is(t, "+")) {
 		p->pos++;
 		int a;
@@ -254,7 +254,7 @@ static int parse_term(qx_parser *p, int *out)
 {
 	int st = parse_unary(p, out);
 	while (st == DW_OK) {
-		const qx_token *t = &p->tok[p->pos];
+		const qx_token *t = qx_cur(p);
 		int op = qx_is(t, "*") ? QE_MUL : qx_is(t, "/") ? QE_DIV : -1;
 		if (op < 0)
 			break;
@@ -271,7 +271,7 @@ int qx_parse_expr(qx_parser *p, int *out)
 {
 	int st = parse_term(p, out);
 	while (st == DW_OK) {
-		const qx_token *t = &p->tok[p->pos];
+		const qx_token *t = qx_cur(p);
 		int op = qx_is(t, "+") ? QE_ADD : qx_is(t, "-") ? QE_SUB : -1;
 		if (op < 0)
 			break;
@@ -286,7 +286,7 @@ int qx_parse_expr(qx_parser *p, int *out)
 
 int qx_parse_const(qx_parser *p, double *out)
 {
-	const qx_token *t = &p->tok[p->pos];
+	const qx_token *t = qx_cur(p);
 	int e;
 	int st = qx_parse_expr(p, &e);
 	if (st)

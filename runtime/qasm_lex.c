@@ -1,9 +1,11 @@
 /* qasm_lex.c - split OpenQASM 3 text into tokens.
- * Takes: program text (UTF-8) and a name for messages.  Gives: an array of
- * qx_token (identifiers, integer and float literals, strings, punctuation)
- * with 1-based line and column (columns count characters, so "π" is one
- * column), ending with QT_EOF.  Comments (// and block) are dropped.
- * Errors: DW_EINPUT "FILE:LINE:COL: ...". */
+ * Takes: program text (UTF-8) and a name for messages.  Gives: tokens one
+ * at a time (qx_lex_next) or all at once (qx_lex): identifiers, integer
+ * and float literals, strings, punctuation, with 1-based line and column
+ * (columns count characters, so "π" is one column), ending with QT_EOF.
+ * Comments (// and block) are dropped.  Errors: DW_EINPUT
+ * "FILE:LINE:COL: ...".  The reader pulls tokens a statement at a time,
+ * so a large flat program never sits in memory as a token array. */
 #include <ctype.h>
 #include <errno.h>
 #include <stdio.h>
@@ -11,13 +13,6 @@
 #include <string.h>
 
 #include "qasm_prog.h"
-
-/* Punctuation, longest first so that "==" wins over "=". */
-static const char *const punct[] = {
-	"**", "==", "!=", "<=", ">=", "->", "&&", "||", "++", "+=", "-=",
-	";", ",", "(", ")", "[", "]", "{", "}", "@", ":", "=", "+", "-", "*",
-	"/", "<", ">", "!", "%", "&", "|", "^", "~", ".",
-};
 
 static int ident_start(unsigned char c)
 {
@@ -29,17 +24,17 @@ static int ident_char(unsigned char c)
 	return isalnum(c) || c == '_' || c >= 0x80;
 }
 
-typedef struct lexer {
-	const char *s, *file;
-	size_t i;
-	long line, col;
-	qx_token *tok;
-	size_t n, cap;
-	dw_error *err;
-} lexer;
+void qx_lexer_init(qx_lexer *L, const char *text, const char *name, dw_error *err)
+{
+	*L = (qx_lexer){text, name, 0, 1, 1, err};
+	/* A UTF-8 byte-order mark is skipped. */
+	if (!strncmp(text, "\xEF\xBB\xBF", 3))
+		L->i = 3;
+}
 
-/* Advance one byte, keeping line and column. */
-static void step(lexer *L)
+/* Advance one byte, keeping line and column (continuation bytes of a UTF-8
+ * character do not start a column). */
+static void step(qx_lexer *L)
 {
 	unsigned char c = (unsigned char)L->s[L->i++];
 	if (c == '\n') {
@@ -50,33 +45,19 @@ static void step(lexer *L)
 	}
 }
 
-static void step_n(lexer *L, size_t n)
+static void step_n(qx_lexer *L, size_t n)
 {
 	while (n--)
 		step(L);
 }
 
-static int push(lexer *L, qx_tok_kind kind, size_t start, long line, long col, double num)
-{
-	if (L->n == L->cap) {
-		size_t cap = L->cap ? 2 * L->cap : 256;
-		qx_token *t = realloc(L->tok, cap * sizeof *t);
-		if (!t)
-			return dw_fail(L->err, DW_EINTERNAL, "out of memory reading %s", L->file);
-		L->tok = t;
-		L->cap = cap;
-	}
-	L->tok[L->n++] = (qx_token){kind, L->s + start, L->i - start, line, col, num};
-	return DW_OK;
-}
-
-static int fail(lexer *L, long line, long col, const char *what)
+static int fail(qx_lexer *L, long line, long col, const char *what)
 {
 	return dw_fail(L->err, DW_EINPUT, "%s:%ld:%ld: %s", L->file, line, col, what);
 }
 
 /* number := digits ['.' digits] [exponent] | '.' digits [exponent] */
-static int lex_number(lexer *L)
+static int lex_number(qx_lexer *L, qx_token *out)
 {
 	size_t start = L->i;
 	long line = L->line, col = L->col;
@@ -118,87 +99,106 @@ static int lex_number(lexer *L)
 	if (!is_float && v > 9007199254740992.0)
 		return fail(L, line, col, "integer larger than 2^53");
 	step_n(L, len);
-	return push(L, is_float ? QT_FLOAT : QT_INT, start, line, col, v);
+	*out = (qx_token){is_float ? QT_FLOAT : QT_INT, s + start, len, line, col, v};
+	return DW_OK;
+}
+
+/* Two-character punctuation, then one-character. */
+static const char punct2[][3] = {"**", "==", "!=", "<=", ">=", "->", "&&", "||", "++", "+=", "-="};
+static const char punct1[] = ";,()[]{}@:=+-*/<>!%&|^~.";
+
+int qx_lex_next(qx_lexer *L, qx_token *out)
+{
+	const char *text = L->s;
+	for (;;) {
+		unsigned char c = (unsigned char)text[L->i];
+		if (c == '\0') {
+			*out = (qx_token){QT_EOF, text + L->i, 0, L->line, L->col, 0};
+			return DW_OK;
+		}
+		if (c == ' ' || c == '\t' || c == '\r' || c == '\n' || c == '\f' || c == '\v') {
+			step(L);
+			continue;
+		}
+		if (c == '/' && text[L->i + 1] == '/') {
+			while (text[L->i] && text[L->i] != '\n')
+				step(L);
+			continue;
+		}
+		if (c == '/' && text[L->i + 1] == '*') {
+			long line = L->line, col = L->col;
+			step_n(L, 2);
+			while (text[L->i] && !(text[L->i] == '*' && text[L->i + 1] == '/'))
+				step(L);
+			if (!text[L->i])
+				return fail(L, line, col, "unterminated comment (expected '*/')");
+			step_n(L, 2);
+			continue;
+		}
+		long line = L->line, col = L->col;
+		size_t start = L->i;
+		if (isdigit(c) || (c == '.' && isdigit((unsigned char)text[L->i + 1])))
+			return lex_number(L, out);
+		if (ident_start(c)) {
+			while (ident_char((unsigned char)text[L->i]))
+				step(L);
+			*out = (qx_token){QT_IDENT, text + start, L->i - start, line, col, 0};
+			return DW_OK;
+		}
+		if (c == '"') {
+			step(L);
+			while (text[L->i] && text[L->i] != '"' && text[L->i] != '\n')
+				step(L);
+			if (text[L->i] != '"')
+				return fail(L, line, col, "unterminated string (expected '\"')");
+			step(L);
+			*out = (qx_token){QT_STRING, text + start, L->i - start, line, col, 0};
+			return DW_OK;
+		}
+		size_t len = 0;
+		for (size_t k = 0; k < sizeof punct2 / sizeof punct2[0] && !len; k++)
+			if (text[L->i] == punct2[k][0] && text[L->i + 1] == punct2[k][1])
+				len = 2;
+		if (!len && strchr(punct1, c))
+			len = 1;
+		if (!len) {
+			char what[64];
+			snprintf(what, sizeof what, "unexpected character '%c' (byte 0x%02x)",
+				isprint(c) ? c : '?', c);
+			return fail(L, line, col, what);
+		}
+		step_n(L, len);
+		*out = (qx_token){QT_PUNCT, text + start, len, line, col, 0};
+		return DW_OK;
+	}
 }
 
 int qx_lex(const char *text, const char *name, qx_token **tok, size_t *ntok,
 	dw_error *err)
 {
-	lexer L = {text, name, 0, 1, 1, NULL, 0, 0, err};
-	int st = DW_OK;
-	/* A UTF-8 byte-order mark is skipped. */
-	if (!strncmp(text, "\xEF\xBB\xBF", 3))
-		L.i = 3;
-	while (st == DW_OK) {
-		unsigned char c = (unsigned char)text[L.i];
-		if (c == '\0')
+	qx_lexer L;
+	qx_lexer_init(&L, text, name, err);
+	qx_token *t = NULL;
+	size_t n = 0, cap = 0;
+	for (;;) {
+		if (n == cap) {
+			cap = cap ? 2 * cap : 64;
+			qx_token *b = realloc(t, cap * sizeof *t);
+			if (!b) {
+				free(t);
+				return dw_fail(err, DW_EINTERNAL, "out of memory reading %s", name);
+			}
+			t = b;
+		}
+		int st = qx_lex_next(&L, &t[n]);
+		if (st) {
+			free(t);
+			return st;
+		}
+		if (t[n++].kind == QT_EOF)
 			break;
-		if (c == ' ' || c == '\t' || c == '\r' || c == '\n' || c == '\f' || c == '\v') {
-			step(&L);
-			continue;
-		}
-		if (c == '/' && text[L.i + 1] == '/') {
-			while (text[L.i] && text[L.i] != '\n')
-				step(&L);
-			continue;
-		}
-		if (c == '/' && text[L.i + 1] == '*') {
-			long line = L.line, col = L.col;
-			step_n(&L, 2);
-			while (text[L.i] && !(text[L.i] == '*' && text[L.i + 1] == '/'))
-				step(&L);
-			if (!text[L.i]) {
-				st = fail(&L, line, col, "unterminated comment (expected '*/')");
-				break;
-			}
-			step_n(&L, 2);
-			continue;
-		}
-		long line = L.line, col = L.col;
-		size_t start = L.i;
-		if (isdigit(c) || (c == '.' && isdigit((unsigned char)text[L.i + 1]))) {
-			st = lex_number(&L);
-		} else if (ident_start(c)) {
-			while (ident_char((unsigned char)text[L.i]))
-				step(&L);
-			st = push(&L, QT_IDENT, start, line, col, 0);
-		} else if (c == '"') {
-			step(&L);
-			while (text[L.i] && text[L.i] != '"' && text[L.i] != '\n')
-				step(&L);
-			if (text[L.i] != '"') {
-				st = fail(&L, line, col, "unterminated string (expected '\"')");
-				break;
-			}
-			step(&L);
-			st = push(&L, QT_STRING, start, line, col, 0);
-		} else {
-			size_t k;
-			for (k = 0; k < sizeof punct / sizeof punct[0]; k++) {
-				size_t len = strlen(punct[k]);
-				if (!strncmp(text + L.i, punct[k], len)) {
-					step_n(&L, len);
-					st = push(&L, QT_PUNCT, start, line, col, 0);
-					break;
-				}
-			}
-			if (k == sizeof punct / sizeof punct[0]) {
-				char what[64];
-				snprintf(what, sizeof what, "unexpected character '%c' (byte 0x%02x)",
-					isprint(c) ? c : '?', c);
-				st = fail(&L, line, col, what);
-			}
-		}
 	}
-	if (st == DW_OK) {
-		st = push(&L, QT_EOF, L.i, L.line, L.col, 0);
-		L.tok[L.n - 1].len = 0;
-	}
-	if (st != DW_OK) {
-		free(L.tok);
-		return st;
-	}
-	*tok = L.tok;
-	*ntok = L.n;
+	*tok = t;
+	*ntok = n;
 	return DW_OK;
 }

@@ -26,6 +26,19 @@ typedef struct qx_token {
 	double num;           /* QT_INT, QT_FLOAT */
 } qx_token;
 
+/* Incremental lexer over a NUL-terminated text. */
+typedef struct qx_lexer {
+	const char *s, *file;
+	size_t i;
+	long line, col;
+	dw_error *err;
+} qx_lexer;
+
+void qx_lexer_init(qx_lexer *L, const char *text, const char *name, dw_error *err);
+
+/* Next token into *out (QT_EOF at the end, again on every later call). */
+int qx_lex_next(qx_lexer *L, qx_token *out);
+
 /* Split text into tokens (comments and white space dropped); the last
  * token is QT_EOF.  *tok is malloc'd. */
 int qx_lex(const char *text, const char *name, qx_token **tok, size_t *ntok,
@@ -51,7 +64,8 @@ enum { QO_REG, QO_ELEM, QO_ARG };          /* whole register, reg[i], gate argum
 typedef struct qx_operand {
 	unsigned char kind;
 	int reg;              /* register index, or argument index for QO_ARG */
-	int index;            /* QO_ELEM: expression */
+	int index;            /* QO_ELEM: expression, or -1 for the constant `fixed` */
+	int fixed;
 	long line, col;
 } qx_operand;
 
@@ -142,8 +156,9 @@ typedef struct qx_sym {
 
 typedef struct qx_parser {
 	const char *file;
-	qx_token *tok;
-	size_t ntok, pos;
+	qx_token *tok;        /* window: the current top-level statement and lookahead */
+	size_t ntok, pos, captok;
+	qx_lexer lex;         /* source of further tokens (qasm_read.c) */
 	dw_qasm_program *prog;
 	qx_sym *sym;
 	size_t nsym, capsym;
@@ -153,6 +168,13 @@ typedef struct qx_parser {
 	int have_stdgates;
 	dw_error *err;
 } qx_parser;
+
+/* The current token (the last one of the window if the parser ran past
+ * it, which a well-formed window never allows). */
+static inline const qx_token *qx_cur(const qx_parser *p)
+{
+	return &p->tok[p->pos < p->ntok ? p->pos : p->ntok - 1];
+}
 
 /* Record "FILE:LINE:COL: message" and return DW_EINPUT. */
 int qx_error_at(qx_parser *p, const qx_token *t, const char *fmt, ...)

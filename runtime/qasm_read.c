@@ -52,7 +52,59 @@ static const char *const reserved[] = {
 
 static const qx_token *cur(qx_parser *p)
 {
-	return &p->tok[p->pos];
+	return qx_cur(p);
+}
+
+/* Append one token from the lexer to the window. */
+static int lex_more(qx_parser *p)
+{
+	if (p->ntok && p->tok[p->ntok - 1].kind == QT_EOF)
+		return DW_OK;
+	if (p->ntok == p->captok) {
+		size_t cap = p->captok ? 2 * p->captok : 256;
+		qx_token *t = realloc(p->tok, cap * sizeof *t);
+		if (!t)
+			return dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
+		p->tok = t;
+		p->captok = cap;
+	}
+	int st = qx_lex_next(&p->lex, &p->tok[p->ntok]);
+	if (st == DW_OK)
+		p->ntok++;
+	return st;
+}
+
+/* Before a top-level statement: drop the tokens read so far and lex up to
+ * the statement's end -- a ';' or '}' outside braces not followed by
+ * 'else' -- plus two tokens of lookahead.  Token pointers stay valid for
+ * the whole statement, since the window only moves here. */
+static int refill(qx_parser *p)
+{
+	if (p->pos)
+		memmove(p->tok, p->tok + p->pos, (p->ntok - p->pos) * sizeof *p->tok);
+	p->ntok -= p->pos;
+	p->pos = 0;
+	size_t k = 0;
+	long depth = 0;
+	int st = DW_OK;
+	for (;;) {
+		while (st == DW_OK && k + 1 >= p->ntok && !(p->ntok && p->tok[p->ntok - 1].kind == QT_EOF))
+			st = lex_more(p);
+		if (st || k >= p->ntok || p->tok[k].kind == QT_EOF)
+			break;
+		const qx_token *t = &p->tok[k];
+		if (qx_is(t, "{"))
+			depth++;
+		else if (qx_is(t, "}"))
+			depth--;
+		int end = depth <= 0 && (qx_is(t, ";") || qx_is(t, "}"));
+		k++;
+		if (end && !(k < p->ntok && qx_is(&p->tok[k], "else")))
+			break;
+	}
+	while (st == DW_OK && p->ntok < k + 3 && !(p->ntok && p->tok[p->ntok - 1].kind == QT_EOF))
+		st = lex_more(p);
+	return st;
 }
 
 static int expect(qx_parser *p, const char *s)
@@ -163,8 +215,20 @@ static void free_block(qx_block *b)
 	b->n = b->cap = 0;
 }
 
+/* Give back the unused tail of an array grown by doubling. */
+static void *shrink(void *a, size_t n, size_t sz)
+{
+	if (!a || n == 0)
+		return a;
+	void *r = realloc(a, n * sz);
+	return r ? r : a;
+}
+
 static int append(qx_parser *p, qx_block *b, qx_stmt *s)
 {
+	s->mods = shrink(s->mods, (size_t)s->nmods, sizeof *s->mods);
+	s->params = shrink(s->params, (size_t)s->nparams, sizeof *s->params);
+	s->ops = shrink(s->ops, (size_t)s->nops, sizeof *s->ops);
 	int st = grow(p, (void **)&b->s, &b->cap, b->n, sizeof *b->s);
 	if (st) {
 		free_stmt(s);
@@ -215,6 +279,12 @@ static int parse_qubit(qx_parser *p, qx_operand *o)
 		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an index from 0 to %d "
 			"into '%s' (got %.17g)", p->file, it->line, it->col, size - 1,
 			p->prog->qregs[o->reg].name, e->num);
+	if (e->op == QE_NUM && (size_t)o->index + 1 == p->prog->nex) {
+		/* a constant index needs no expression node */
+		o->fixed = (int)e->num;
+		o->index = -1;
+		p->prog->nex--;
+	}
 	if (qx_is(cur(p), ":"))
 		return qx_error_at(p, cur(p), "expected ']' (register slices are not read)");
 	o->kind = QO_ELEM;
@@ -248,6 +318,12 @@ static int parse_bit(qx_parser *p, qx_operand *o)
 		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an index from 0 to %d "
 			"into '%s' (got %.17g)", p->file, it->line, it->col, size - 1,
 			p->prog->cregs[o->reg].name, e->num);
+	if (e->op == QE_NUM && (size_t)o->index + 1 == p->prog->nex) {
+		/* a constant index needs no expression node */
+		o->fixed = (int)e->num;
+		o->index = -1;
+		p->prog->nex--;
+	}
 	o->kind = QO_ELEM;
 	return expect(p, "]");
 }
@@ -861,9 +937,9 @@ static int parse_statement(qx_parser *p, qx_block *b, int depth)
 	if (qx_is(t, "output")) {
 		if ((st = top_level_only(p, depth)))
 			return st;
-		if (!qx_is(&p->tok[p->pos + 1], "bit"))
-			return qx_error_at(p, &p->tok[p->pos + 1], "expected 'bit' after 'output'");
 		p->pos++;
+		if (!qx_is(cur(p), "bit"))
+			return qx_error_at(p, cur(p), "expected 'bit' after 'output'");
 		return parse_register(p, 0, 0);
 	}
 	if (qx_is(t, "input")) {
@@ -940,7 +1016,8 @@ int dw_qasm_parse_string(const char *text, const char *name, dw_qasm_program **o
 	p.prog = g;
 	p.err = err;
 	p.nslots = &g->nslots;
-	int st = qx_lex(text, name, &p.tok, &p.ntok, err);
+	qx_lexer_init(&p.lex, text, name, err);
+	int st = refill(&p);
 	if (st == DW_OK && qx_is(cur(&p), "OPENQASM")) {
 		const qx_token *v = &p.tok[++p.pos];
 		if ((v->kind != QT_INT && v->kind != QT_FLOAT) || v->num < 3 || v->num >= 4)
@@ -951,7 +1028,7 @@ int dw_qasm_parse_string(const char *text, const char *name, dw_qasm_program **o
 			st = expect(&p, ";");
 		}
 	}
-	while (st == DW_OK && cur(&p)->kind != QT_EOF)
+	while (st == DW_OK && (st = refill(&p)) == DW_OK && cur(&p)->kind != QT_EOF)
 		st = parse_statement(&p, &g->main, 0);
 	free(p.tok);
 	free(p.sym);

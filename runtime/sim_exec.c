@@ -283,7 +283,9 @@ static int resolve(exec *x, const qx_operand *o, const dw_qasm_reg *regs, size_t
 	}
 	const dw_qasm_reg *r = &regs[o->reg];
 	long long i = j;
-	if (o->kind == QO_ELEM) {
+	if (o->kind == QO_ELEM && o->index < 0) {
+		i = o->fixed;      /* checked when read */
+	} else if (o->kind == QO_ELEM) {
 		int st = eval_int(x, o->index, vb, "index", &i);
 		if (st)
 			return st;
