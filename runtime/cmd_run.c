@@ -154,6 +154,13 @@ static void print_table(FILE *f, const char *path, const dw_qasm_program *prog,
 	}
 }
 
+static void free_params(dw_qasm_param *params, size_t n)
+{
+	for (size_t i = 0; i < n; i++)
+		free((char *)params[i].name);
+	free(params);
+}
+
 int dw_cmd_run(int argc, char **argv)
 {
 	const char *path = NULL;
@@ -178,25 +185,29 @@ int dw_cmd_run(int argc, char **argv)
 				rc = dw_fail(&err, DW_EUSAGE, "--seed: expected an unsigned integer");
 			seed = s;
 		} else if (!strcmp(a, "--param") || !strncmp(a, "--param=", 8)) {
-			char *v = a[7] == '=' ? argv[i] + 8 : (i + 1 < argc ? argv[++i] : NULL);
-			char *eq = v ? strchr(v, '=') : NULL;
+			const char *v = a[7] == '=' ? a + 8 : (i + 1 < argc ? argv[++i] : NULL);
+			const char *eq = v ? strchr(v, '=') : NULL;
 			if (!eq || eq == v) {
 				rc = dw_fail(&err, DW_EUSAGE, "--param: expected name=value");
 				break;
 			}
-			*eq = '\0';
+			char *name = strndup(v, (size_t)(eq - v));
+			if (!name) {
+				rc = dw_fail(&err, DW_EINTERNAL, "out of memory");
+				break;
+			}
 			for (size_t k = 0; k < nparams; k++)
-				if (!strcmp(params[k].name, v))
-					rc = dw_fail(&err, DW_EUSAGE, "--param %s given twice", v);
+				if (!strcmp(params[k].name, name))
+					rc = dw_fail(&err, DW_EUSAGE, "--param %s given twice", name);
 			double x = 0;
 			dw_error bad = {0};
 			if (rc == DW_OK && dw_angle_expr_eval(eq + 1, &x, &bad))
-				rc = dw_fail(&err, DW_EUSAGE, "--param %s: %s", v, bad.msg);
-			params[nparams].name = v;
+				rc = dw_fail(&err, DW_EUSAGE, "--param %s: %s", name, bad.msg);
+			params[nparams].name = name;
 			params[nparams++].value = x;
 		} else if (!strcmp(a, "-h") || !strcmp(a, "--help")) {
 			usage();
-			free(params);
+			free_params(params, nparams);
 			return DW_OK;
 		} else if (a[0] == '-' && a[1]) {
 			rc = dw_fail(&err, DW_EUSAGE, "run: unknown option '%s'", a);
@@ -212,7 +223,7 @@ int dw_cmd_run(int argc, char **argv)
 	if (rc == DW_EUSAGE) {
 		dw_report(&err);
 		usage();
-		free(params);
+		free_params(params, nparams);
 		return rc;
 	}
 	dw_qasm_program *prog = NULL;
@@ -232,6 +243,6 @@ int dw_cmd_run(int argc, char **argv)
 	}
 	dw_state_free(st);
 	dw_qasm_free(prog);
-	free(params);
+	free_params(params, nparams);
 	return rc ? dw_report(&err) : DW_OK;
 }

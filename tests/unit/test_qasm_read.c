@@ -7,9 +7,12 @@
 #include <complex.h>
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "check.h"
+#include "dwell/cli.h"
 #include "dwell/qasm.h"
 #include "dwell/sim.h"
 
@@ -354,6 +357,105 @@ static void test_angle_eval(void)
 	}
 }
 
+/* Run `dwell run` with args; its stdout into out. */
+static int run_cli(int argc, char **argv, char *out, size_t cap)
+{
+	fflush(stdout);
+	int saved = dup(1);
+	FILE *tmp = tmpfile();
+	if (saved < 0 || !tmp)
+		return -1;
+	dup2(fileno(tmp), 1);
+	int rc = dw_cmd_run(argc, argv);
+	fflush(stdout);
+	dup2(saved, 1);
+	close(saved);
+	rewind(tmp);
+	size_t n = fread(out, 1, cap - 1, tmp);
+	out[n] = '\0';
+	fclose(tmp);
+	return rc;
+}
+
+static void write_file(const char *path, const char *text)
+{
+	FILE *f = fopen(path, "w");
+	if (f) {
+		fputs(text, f);
+		fclose(f);
+	}
+}
+
+static void test_cli(void)
+{
+	char dir[] = "/tmp/dwell-run-XXXXXX";
+	if (!mkdtemp(dir)) {
+		CHECK(0, "mkdtemp");
+		return;
+	}
+	char bell[64], big[64], in[64];
+	snprintf(bell, sizeof bell, "%s/bell.qasm", dir);
+	snprintf(big, sizeof big, "%s/big.qasm", dir);
+	snprintf(in, sizeof in, "%s/in.qasm", dir);
+	write_file(bell, "OPENQASM 3.0;\ninclude \"stdgates.inc\";\nqubit[2] q;\nbit[2] c;\n"
+		"h q[0];\ncx q[0], q[1];\n");
+	/* a product state ry(0.1 (i+1)) on 21 qubits: above 20 qubits the most
+	 * probable basis states are listed */
+	write_file(big, "OPENQASM 3.0;\ninclude \"stdgates.inc\";\nqubit[21] q;\n"
+		"for int i in [0:20] { ry(0.1 * (i + 1)) q[i]; }\n");
+	write_file(in, "OPENQASM 3.0;\ninclude \"stdgates.inc\";\ninput angle a;\nqubit q;\n"
+		"rx(a) q;\n");
+	static char out[1 << 16];
+	char *a1[] = {"run", bell, "--json", NULL};
+	int rc = run_cli(3, a1, out, sizeof out);
+	/* 1/sqrt(2) printed with 17 significant digits (%.17g, common practice) */
+	CHECK(rc == 0 && !strcmp(out, "{\"qubits\": 2, \"seed\": 1, \"registers\": [{\"name\": \"q\", "
+		"\"offset\": 0, \"size\": 2}], \"bits\": {\"c\": [0, 0]}, \"amplitudes\": "
+		"[[0.70710678118654757, 0], [0, 0], [0, 0], [0.70710678118654757, 0]]}\n"),
+		"bell --json: %s", out);
+	char *a2[] = {"run", big, "--json", NULL};
+	rc = run_cli(3, a2, out, sizeof out);
+	/* the most probable outcome sets the qubits with sin^2(θ/2) > 1/2,
+	 * θ = 0.1 (i+1) > π/2: i = 15..20, index 2^21 - 2^15 */
+	double p = 1;
+	for (int i = 0; i < 21; i++) {
+		double s2 = sin(0.05 * (i + 1)) * sin(0.05 * (i + 1));
+		p *= i >= 15 ? s2 : 1 - s2;
+	}
+	char want[128];
+	snprintf(want, sizeof want, "\"outcomes\": [{\"index\": 2064384, \"probability\": ");
+	const char *at = strstr(out, want);
+	CHECK(rc == 0 && at, "21 qubits: outcomes start with index 2064384: %.300s", out);
+	if (at) {
+		double got = strtod(at + strlen(want), NULL);
+		CHECK(fabs(got - p) < 1e-15, "top probability %.17g vs %.17g", got, p);
+	}
+	int count = 0;
+	for (const char *c = out; (c = strstr(c, "\"index\"")); c++)
+		count++;
+	CHECK(count == 32, "32 outcomes listed, got %d", count);
+	char *a3[] = {"run", in, "--param", "a=pi", NULL};
+	rc = run_cli(4, a3, out, sizeof out);
+	CHECK(rc == 0 && strstr(out, "         1  q=1  [0, -1]  1\n"), "rx(pi)|0> = -i|1>: %s", out);
+	/* exit statuses: 1 usage, 2 bad input */
+	char *u1[] = {"run", NULL};
+	CHECK(run_cli(1, u1, out, sizeof out) == DW_EUSAGE, "no file: usage");
+	char *u2[] = {"run", bell, "--seed", "x", NULL};
+	CHECK(run_cli(4, u2, out, sizeof out) == DW_EUSAGE, "bad seed: usage");
+	char *u3[] = {"run", in, "--param", "a=pi/", NULL};
+	CHECK(run_cli(4, u3, out, sizeof out) == DW_EUSAGE, "bad param value: usage");
+	char *e1[] = {"run", in, NULL};
+	CHECK(run_cli(2, e1, out, sizeof out) == DW_EINPUT, "missing input: bad input");
+	char nofile[80];
+	snprintf(nofile, sizeof nofile, "%s/none.qasm", dir);
+	char *e2[] = {"run", nofile, NULL};
+	CHECK(run_cli(2, e2, out, sizeof out) == DW_EINPUT, "missing file: bad input");
+	remove(bell);
+	remove(big);
+	remove(in);
+	rmdir(dir);
+}
+
 int main(void)
 {
 	test_layout();
@@ -362,5 +464,6 @@ int main(void)
 	test_measure();
 	test_errors();
 	test_angle_eval();
+	test_cli();
 	return check_done();
 }
