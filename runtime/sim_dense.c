@@ -91,52 +91,77 @@ static double run_range(range_fn fn, const kargs *a, int64_t n, int64_t work)
 	return fn(a, 0, n);
 }
 
+/* Two doubles (re, im) in one SSE2 register: a product a m is
+ * (m_re, m_re) a + (-m_im, m_im) (a_im, a_re), two multiplies and an add. */
+typedef double v2d __attribute__((vector_size(16)));
+typedef long long v2i __attribute__((vector_size(16)));
+
+static inline v2d vload(const double complex *p)
+{
+	v2d v;
+	memcpy(&v, p, sizeof v);
+	return v;
+}
+
+static inline void vstore(double complex *p, v2d v)
+{
+	memcpy(p, &v, sizeof v);
+}
+
+static inline v2d vswap(v2d v)
+{
+	return __builtin_shuffle(v, (v2i){1, 0});
+}
+
+/* m x for m given as (m_re, m_re), (-m_im, m_im) */
+static inline v2d vmul(v2d re, v2d im, v2d x)
+{
+	return re * x + im * vswap(x);
+}
+
+static inline void vsplit(double complex m, v2d *re, v2d *im)
+{
+	*re = (v2d){creal(m), creal(m)};
+	*im = (v2d){-cimag(m), cimag(m)};
+}
+
 static double r_dense(const kargs *a, int64_t k0, int64_t k1)
 {
-	const double complex m00 = a->m[0], m01 = a->m[1], m10 = a->m[2], m11 = a->m[3];
+	v2d re[4], im[4];
+	for (int j = 0; j < 4; j++) {
+		re[j] = (v2d){creal(a->m[j]), creal(a->m[j])};
+		im[j] = (v2d){-cimag(a->m[j]), cimag(a->m[j])};
+	}
 	double complex *p0 = a->p0, *p1 = a->p1;
 	const uint64_t cmask = a->cmask, cval = a->cval;
 	const int t = a->t;
-	if (cmask == 0) {
-		for (int64_t k = k0; k < k1; k++) {
-			uint64_t i = ins0((uint64_t)k, t);
-			double complex x = p0[i], y = p1[i];
-			p0[i] = cmul(m00, x) + cmul(m01, y);
-			p1[i] = cmul(m10, x) + cmul(m11, y);
-		}
-		return 0;
-	}
 	for (int64_t k = k0; k < k1; k++) {
 		uint64_t i = ins0((uint64_t)k, t);
 		if ((i & cmask) != cval)
 			continue;
-		double complex x = p0[i], y = p1[i];
-		p0[i] = cmul(m00, x) + cmul(m01, y);
-		p1[i] = cmul(m10, x) + cmul(m11, y);
+		v2d x = vload(p0 + i), y = vload(p1 + i), sx = vswap(x), sy = vswap(y);
+		vstore(p0 + i, re[0] * x + im[0] * sx + re[1] * y + im[1] * sy);
+		vstore(p1 + i, re[2] * x + im[2] * sx + re[3] * y + im[3] * sy);
 	}
 	return 0;
 }
 
 static double r_diag(const kargs *a, int64_t k0, int64_t k1)
 {
-	const double complex d0 = a->m[0], d1 = a->m[3];
+	v2d r0, i0, r1, i1;
+	vsplit(a->m[0], &r0, &i0);
+	vsplit(a->m[3], &r1, &i1);
 	double complex *p0 = a->p0, *p1 = a->p1;
 	const uint64_t cmask = a->cmask, cval = a->cval;
 	const int t = a->t;
-	if (d0 == 1) {
-		for (int64_t k = k0; k < k1; k++) {
-			uint64_t i = ins0((uint64_t)k, t);
-			if ((i & cmask) == cval)
-				p1[i] = cmul(d1, p1[i]);
-		}
-		return 0;
-	}
+	const int one0 = a->m[0] == 1;
 	for (int64_t k = k0; k < k1; k++) {
 		uint64_t i = ins0((uint64_t)k, t);
 		if ((i & cmask) != cval)
 			continue;
-		p0[i] = cmul(d0, p0[i]);
-		p1[i] = cmul(d1, p1[i]);
+		if (!one0)
+			vstore(p0 + i, vmul(r0, i0, vload(p0 + i)));
+		vstore(p1 + i, vmul(r1, i1, vload(p1 + i)));
 	}
 	return 0;
 }
@@ -190,7 +215,8 @@ static double r_swap(const kargs *a, int64_t k0, int64_t k1)
  * satisfies (b & cmask) == cval. */
 static double r_phase(const kargs *a, int64_t k0, int64_t k1)
 {
-	const double complex ph = a->m[0];
+	v2d re, im;
+	vsplit(a->m[0], &re, &im);
 	double complex *p = a->p0;
 	const uint64_t run = a->run, cmask = a->cmask, cval = a->cval;
 	for (int64_t r = k0; r < k1; r++) {
@@ -198,7 +224,7 @@ static double r_phase(const kargs *a, int64_t k0, int64_t k1)
 		if ((b & cmask) != cval)
 			continue;
 		for (uint64_t j = 0; j < run; j++)
-			p[b + j] = cmul(ph, p[b + j]);
+			vstore(p + b + j, vmul(re, im, vload(p + b + j)));
 	}
 	return 0;
 }
