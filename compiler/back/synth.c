@@ -43,6 +43,7 @@ const char *dw_sq_gate_name(dw_sq_gate g)
 void dw_synth_defaults(dw_synth_options *opt)
 {
 	opt->factor_effort = 4000;
+	opt->extra_solutions = 3;
 	opt->max_denom_exp = 0;
 }
 
@@ -116,6 +117,8 @@ typedef struct search_ctx {
 	uint32_t effort;
 	uint32_t candidates;
 	int found;
+	uint32_t solutions;         /* solved candidates at the current k */
+	uint32_t extra;             /* further solutions to try at that k */
 	int failed;
 	dw_error *err;
 	dw_synth_result *out;
@@ -174,21 +177,32 @@ static int visit_candidate(const dw_zomega *a, void *user)
 		size_t n = 0;
 		if (dw_exact_synth(&u, &gates, &n, &phase, c->err) != DW_OK) {
 			c->failed = 1;
+			stop = 1;
 		} else {
-			c->out->gates = gates;
-			c->out->count = n;
 			uint32_t tc = 0;
 			for (size_t i = 0; i < n; i++)
 				tc += gates[i] == DW_SQ_T || gates[i] == DW_SQ_TDG;
-			c->out->t_count = tc;
-			c->out->error = dw_grid_error(c->grid, a, c->k);
-			c->out->global_phase = norm_phase(phase * acos(-1.0) / 4
-				- c->shift * acos(-1.0) / 8);
-			c->out->denom_exp = c->k;
-			c->found = 1;
+			if (!c->found || tc < c->out->t_count) {
+				free(c->out->gates);
+				c->out->gates = gates;
+				c->out->count = n;
+				c->out->t_count = tc;
+				c->out->error = dw_grid_error(c->grid, a, c->k);
+				c->out->global_phase = norm_phase(phase * acos(-1.0) / 4
+					- c->shift * acos(-1.0) / 8);
+				c->out->denom_exp = c->k;
+				c->found = 1;
+			} else {
+				free(gates);
+			}
+			/* at exponent k the T-count is at least 2k - 2 (2k - 3 with
+			 * the extra T): no better candidate can follow */
+			long floor_t = 2L * c->k - 2 - c->shift;
+			c->solutions++;
+			if (c->solutions > c->extra || (long)c->out->t_count <= floor_t)
+				stop = 1;
 		}
 		dw_dmat2_clear(&u);
-		stop = 1;
 	}
 done:
 	dw_zr2_clear(&sq);
@@ -208,7 +222,8 @@ static int search(double theta, int shift, double eps, const dw_synth_options *o
 	int st = dw_grid_create(&grid, theta, shift, eps, err);
 	if (st != DW_OK)
 		return st;
-	search_ctx c = {grid, shift, 0, opt->factor_effort, 0, 0, 0, err, out};
+	search_ctx c = {grid, shift, 0, opt->factor_effort, 0, 0, 0, opt->extra_solutions,
+		0, err, out};
 	for (int k = 0; k <= kmax && !c.found && !c.failed; k++) {
 		c.k = k;
 		int lr = dw_grid_level(grid, k, 2000000, visit_candidate, &c);

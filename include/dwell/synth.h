@@ -52,6 +52,8 @@ typedef struct dw_synth_result {
 typedef struct dw_synth_options {
 	uint32_t factor_effort;   /* Pollard rho iterations per candidate */
 	int max_denom_exp;        /* give up beyond this k (0: automatic) */
+	uint32_t extra_solutions; /* after the first solution at the least k,
+	                             try this many more there, keep the best */
 } dw_synth_options;
 
 void dw_synth_defaults(dw_synth_options *opt);
