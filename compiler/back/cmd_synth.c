@@ -93,6 +93,7 @@ int dw_cmd_synth(int argc, char **argv)
 		printf("t-count   %u\n", res.t_count);
 		printf("gates     %zu\n", res.count);
 		printf("error     %.6g\n", res.error);
+		printf("phase     %.17g  (rz = e^{i phase} * product)\n", res.global_phase);
 		printf("sequence  ");
 		for (size_t i = 0; i < res.count; i++)
 			printf("%s%s", i ? " " : "", dw_sq_gate_name(res.gates[i]));
