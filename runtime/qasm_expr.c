@@ -142,11 +142,17 @@ static int make(qx_parser *p, const qx_token *at, int op, int fn, int a, int b, 
 			return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: %s%s%s", p->file,
 				at->line, at->col, why, op == QE_FN ? " in " : "",
 				op == QE_FN ? fn_name(fn) : "");
-		qx_expr n = {QE_NUM, 0, -1, -1, -1, v, at->line, at->col};
+		qx_expr n = {QE_NUM, 0, -1, -1, -1, v, at->line, at->col, 0};
 		*out = qx_new_expr(p, &n);
 		return *out < 0 ? p->err->status : DW_OK;
 	}
-	qx_expr n = {(unsigned char)op, (unsigned char)fn, a, b, -1, 0, at->line, at->col};
+	int depth = 1 + ea->depth;
+	if (eb && eb->depth >= ea->depth)
+		depth = 1 + eb->depth;
+	if (depth > QX_MAX_NEST)
+		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an expression nested at "
+			"most %d levels deep", p->file, at->line, at->col, QX_MAX_NEST);
+	qx_expr n = {(unsigned char)op, (unsigned char)fn, a, b, -1, 0, at->line, at->col, depth};
 	*out = qx_new_expr(p, &n);
 	return *out < 0 ? p->err->status : DW_OK;
 }
@@ -158,7 +164,7 @@ static int parse_primary(qx_parser *p, int *out)
 	const qx_token *t = qx_cur(p);
 	if (t->kind == QT_INT || t->kind == QT_FLOAT) {
 		p->pos++;
-		qx_expr n = {QE_NUM, 0, -1, -1, -1, t->num, t->line, t->col};
+		qx_expr n = {QE_NUM, 0, -1, -1, -1, t->num, t->line, t->col, 0};
 		*out = qx_new_expr(p, &n);
 		return *out < 0 ? p->err->status : DW_OK;
 	}
@@ -177,7 +183,7 @@ static int parse_primary(qx_parser *p, int *out)
 	p->pos++;
 	for (size_t i = 0; i < sizeof constants / sizeof constants[0]; i++)
 		if (qx_is(t, constants[i].name)) {
-			qx_expr n = {QE_NUM, 0, -1, -1, -1, constants[i].value, t->line, t->col};
+			qx_expr n = {QE_NUM, 0, -1, -1, -1, constants[i].value, t->line, t->col, 0};
 			*out = qx_new_expr(p, &n);
 			return *out < 0 ? p->err->status : DW_OK;
 		}
@@ -201,7 +207,7 @@ static int parse_primary(qx_parser *p, int *out)
 		return qx_error_at(p, t, "expected a number, a constant (pi, tau, euler), a function "
 			"or a declared variable");
 	if (s->kind == SY_CONST) {
-		qx_expr n = {QE_NUM, 0, -1, -1, -1, s->value, t->line, t->col};
+		qx_expr n = {QE_NUM, 0, -1, -1, -1, s->value, t->line, t->col, 0};
 		*out = qx_new_expr(p, &n);
 		return *out < 0 ? p->err->status : DW_OK;
 	}
@@ -211,7 +217,7 @@ static int parse_primary(qx_parser *p, int *out)
 	if ((size_t)(s - p->sym) < p->barrier)
 		return qx_error_at(p, t, "expected a gate parameter, loop variable or constant "
 			"(a gate body cannot read outer variables)");
-	qx_expr n = {QE_SLOT, 0, -1, -1, s->index, 0, t->line, t->col};
+	qx_expr n = {QE_SLOT, 0, -1, -1, s->index, 0, t->line, t->col, 0};
 	*out = qx_new_expr(p, &n);
 	return *out < 0 ? p->err->status : DW_OK;
 }
@@ -236,9 +242,14 @@ static int parse_unary(qx_parser *p, int *out)
 {
 	const qx_token *t = qx_cur(p);
 	if (qx_is(t, "-") || qx_is(t, "+")) {
+		if (p->nest >= QX_MAX_NEST)
+			return qx_error_at(p, t, "expected an expression nested at most %d levels deep",
+				QX_MAX_NEST);
 		p->pos++;
 		int a;
+		p->nest++;
 		int st = parse_unary(p, &a);
+		p->nest--;
 		if (st)
 			return st;
 		if (qx_is(t, "+")) {
@@ -269,6 +280,10 @@ static int parse_term(qx_parser *p, int *out)
 
 int qx_parse_expr(qx_parser *p, int *out)
 {
+	if (p->nest >= QX_MAX_NEST)
+		return qx_error_at(p, qx_cur(p), "expected an expression nested at most %d levels deep",
+			QX_MAX_NEST);
+	p->nest++;
 	int st = parse_term(p, out);
 	while (st == DW_OK) {
 		const qx_token *t = qx_cur(p);
@@ -281,6 +296,7 @@ int qx_parse_expr(qx_parser *p, int *out)
 		if (st == DW_OK)
 			st = make(p, t, op, 0, *out, b, out);
 	}
+	p->nest--;
 	return st;
 }
 

@@ -55,7 +55,10 @@ typedef struct qx_expr {
 	int slot;             /* QE_SLOT */
 	double num;           /* QE_NUM */
 	long line, col;
+	int depth;            /* height of the tree (evaluation recurses this deep) */
 } qx_expr;
+
+#define QX_MAX_NEST 1000      /* deepest expression, and deepest gate-call chain */
 
 /* ---- statements ---- */
 
@@ -166,6 +169,7 @@ typedef struct qx_parser {
 	int in_gate;
 	int *nslots;          /* slot counter of the current frame */
 	int have_stdgates;
+	int nest;             /* recursion depth of the expression parser */
 	dw_error *err;
 } qx_parser;
 

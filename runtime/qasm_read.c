@@ -570,7 +570,7 @@ static int parse_if(qx_parser *p, qx_block *b, int depth)
 			goto fail;
 	} else {
 		/* `if (c)` means c != 0, `if (!c)` means c == 0 */
-		qx_expr zero = {QE_NUM, 0, -1, -1, -1, 0, t->line, t->col};
+		qx_expr zero = {QE_NUM, 0, -1, -1, -1, 0, t->line, t->col, 0};
 		s.cond_value = qx_new_expr(p, &zero);
 		if (s.cond_value < 0) {
 			st = p->err->status;

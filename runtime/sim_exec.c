@@ -30,6 +30,7 @@ typedef struct exec {
 	dw_error *err;
 	double *vars;             /* frames of variable slots */
 	size_t nvars, capvars;
+	int depth;                /* nesting of user gate calls */
 } exec;
 
 static int fail_at(exec *x, long line, long col, const char *fmt, ...)
@@ -254,8 +255,12 @@ static int apply_call(exec *x, const qx_stmt *s, const int *q, size_t vb, ctx c)
 	int st = DW_OK;
 	if (s->user >= 0) {
 		const qx_gatedef *d = &x->prog->gates[s->user];
+		if (x->depth >= QX_MAX_NEST)
+			return fail_at(x, s->line, s->col, "expected gate calls nested at most %d deep",
+				QX_MAX_NEST);
 		if ((st = push_frame(x, d->nslots, &frame)))
 			return st;
+		x->depth++;
 		for (int i = 0; i < s->nparams && st == DW_OK; i++) {
 			double v;
 			st = eval(x, s->params[i], vb, &v);
@@ -264,6 +269,7 @@ static int apply_call(exec *x, const qx_stmt *s, const int *q, size_t vb, ctx c)
 		if (st == DW_OK)
 			st = apply_mods(x, s, 0, q, par, frame, vb, c);
 		x->nvars = frame;
+		x->depth--;
 		return st;
 	}
 	for (int i = 0; i < s->nparams && st == DW_OK; i++)
@@ -435,7 +441,7 @@ int dw_sim_exec(const dw_qasm_program *prog, const dw_qasm_params *params,
 	if (st->nqubits != prog->nqubits)
 		return dw_fail(err, DW_EINTERNAL, "%s: state has %d qubits, program %d", prog->name,
 			st->nqubits, prog->nqubits);
-	exec x = {prog, st, err, NULL, 0, 0};
+	exec x = {prog, st, err, NULL, 0, 0, 0};
 	size_t base;
 	int rc = push_frame(&x, prog->nslots, &base);
 	/* bind inputs */

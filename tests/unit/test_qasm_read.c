@@ -322,6 +322,42 @@ static void test_errors(void)
 		"t.qasm:3:1: expected a nonzero loop step");
 }
 
+/* Inputs built to exhaust recursion are refused, not crashed on. */
+static void test_limits(void)
+{
+	static char text[200000];
+	char msg[1024];
+	double complex out[2];
+	/* 1500 nested parentheses */
+	int n = snprintf(text, sizeof text, "qubit q;\nU(");
+	for (int i = 0; i < 1500; i++)
+		text[n++] = '(';
+	text[n++] = '1';
+	for (int i = 0; i < 1500; i++)
+		text[n++] = ')';
+	snprintf(text + n, sizeof text - (size_t)n, ", 0, 0) q;");
+	int rc = run(text, NULL, 1, out, 2, NULL, msg);
+	CHECK(rc == DW_EINPUT && strstr(msg, "expected an expression nested at most 1000 levels deep"),
+		"deep parentheses: %s", msg);
+	/* a left-deep chain x+1+1+... that constant folding cannot shorten: the
+	 * k-th + (column 2 + 2k) makes depth k; the 1001st is refused */
+	n = snprintf(text, sizeof text, "input float x;\nqubit q;\nU(x");
+	for (int i = 0; i < 1200; i++)
+		n += snprintf(text + n, sizeof text - (size_t)n, "+1");
+	snprintf(text + n, sizeof text - (size_t)n, ", 0, 0) q;");
+	rc = run(text, NULL, 1, out, 2, NULL, msg);
+	CHECK(rc == DW_EINPUT && !strcmp(msg, "t.qasm:3:2004: expected an expression nested at most "
+		"1000 levels deep"), "long chain: %s", msg);
+	/* 1100 gates, each calling the one before */
+	n = snprintf(text, sizeof text, "qubit q;\ngate g0 a { U(0, 0, 0) a; }\n");
+	for (int i = 1; i < 1100; i++)
+		n += snprintf(text + n, sizeof text - (size_t)n, "gate g%d a { g%d a; }\n", i, i - 1);
+	snprintf(text + n, sizeof text - (size_t)n, "g1099 q;\n");
+	rc = run(text, NULL, 1, out, 2, NULL, msg);
+	CHECK(rc == DW_EINPUT && strstr(msg, "expected gate calls nested at most 1000 deep"),
+		"deep gate chain: %s", msg);
+}
+
 static void test_angle_eval(void)
 {
 	/* constants and functions (values: C math library, common practice) */
@@ -464,6 +500,7 @@ int main(void)
 	test_measure();
 	test_errors();
 	test_angle_eval();
+	test_limits();
 	test_cli();
 	return check_done();
 }
