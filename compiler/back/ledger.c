@@ -31,7 +31,10 @@ int dw_ledger_build(dw_program *pg, dw_ledger *L, dw_error *e)
 	if (dw_cost_figures(c, pg->top, &L->fig, e))
 		return e->status;
 	uint64_t nrot = L->fig.rotation_count;
-	if (nrot > 0 && pg->budget.synth > 0) {
+	bool ct = pg->problem->gates == DW_GATES_CLIFFORD_T;
+	if (ct) {
+		/* rotations were synthesised by the lowering; eps_rotation is its share */
+	} else if (nrot > 0 && pg->budget.synth > 0) {
 		pg->eps_rotation = pg->budget.synth / (double)nrot;
 		pg->t_per_rotation = (uint64_t)ceil(3.0 * log2(1.0 / pg->eps_rotation));
 	} else {
@@ -216,8 +219,18 @@ static void write_json(FILE *f, const dw_ledger *L)
 	fprintf(f, ",\n  \"t_count_estimated\": %s", L->t_count_estimated ? "true" : "false");
 	fprintf(f, ",\n  \"t_count_exact_part\": ");
 	ju(f, g->t_count_exact);
-	fprintf(f, ",\n  \"t_count_formula\": ");
-	jstr(f, T_FORMULA);
+	if (pg->problem->gates == DW_GATES_CLIFFORD_T) {
+		fprintf(f, ",\n  \"synthesis\": {\"method\": ");
+		jstr(f, "optimal ancilla-free Clifford+T z-rotation approximation (QIC 16, 2016)");
+		fprintf(f, ", \"rotations\": ");
+		ju(f, pg->synth_rotations_planned);
+		fprintf(f, ", \"distinct\": %zu, \"max_error\": ", pg->synth_distinct);
+		jnum(f, pg->synth_max_error);
+		fprintf(f, "}");
+	} else {
+		fprintf(f, ",\n  \"t_count_formula\": ");
+		jstr(f, T_FORMULA);
+	}
 	fprintf(f, ",\n  \"t_per_rotation\": ");
 	ju(f, pg->t_per_rotation);
 	fprintf(f, ",\n  \"eps_rotation\": ");
@@ -273,8 +286,13 @@ static void write_json(FILE *f, const dw_ledger *L)
 	fprintf(f, "\n  ],\n");
 
 	fprintf(f, "  \"assumptions\": [\n");
-	fprintf(f, "    \"gate set: OpenQASM 3 stdgates.inc gates with continuous rotation "
-		"angles; every gate counts as one in gate_count and depth\",\n");
+	if (pg->problem->gates == DW_GATES_CLIFFORD_T)
+		fprintf(f, "    \"gate set: Clifford+T (h, s, sdg, t, tdg, x, y, z, cx, cz); every "
+			"rotation synthesised within eps_rotation = synth share / rotations; every "
+			"gate counts as one in gate_count and depth; t_count and t_depth are exact\",\n");
+	else
+		fprintf(f, "    \"gate set: OpenQASM 3 stdgates.inc gates with continuous rotation "
+			"angles; every gate counts as one in gate_count and depth\",\n");
 	fprintf(f, "    \"t_count: t and tdg gates, 7 per ccx (Clifford+T Toffoli), plus "
 		"t_per_rotation for every rx/ry/rz/p rotation (estimate, see t_count_formula); "
 		"t_depth weighs ccx 3 and each rotation t_per_rotation\",\n");
@@ -358,7 +376,13 @@ void dw_ledger_table(const dw_ledger *L, FILE *f)
 			(long long)r->fig.depth,
 			g->gate_count ? 100.0 * (double)r->fig.gate_count / (double)g->gate_count : 0.0);
 	}
-	fprintf(f, "assumptions: continuous gate set; t_count estimates %llu T per rotation "
-		"(eps %.3g each); see the ledger JSON \"assumptions\"\n",
-		(unsigned long long)pg->t_per_rotation, pg->eps_rotation);
+	if (p->gates == DW_GATES_CLIFFORD_T)
+		fprintf(f, "assumptions: Clifford+T gate set, %llu rotations synthesised within "
+			"%.3g each (%zu distinct, largest error %.3g); t_count is exact\n",
+			(unsigned long long)pg->synth_rotations_planned, pg->eps_rotation,
+			pg->synth_distinct, pg->synth_max_error);
+	else
+		fprintf(f, "assumptions: continuous gate set; t_count estimates %llu T per rotation "
+			"(eps %.3g each); see the ledger JSON \"assumptions\"\n",
+			(unsigned long long)pg->t_per_rotation, pg->eps_rotation);
 }

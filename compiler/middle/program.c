@@ -298,9 +298,6 @@ int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 	out->order = p->order;
 	if (!p->analysed)
 		return dw_fail(e, DW_EINTERNAL, "internal: problem not analysed");
-	if (p->gates != DW_GATES_CONTINUOUS)
-		return dw_fail(e, DW_EINPUT, "%s: target.gates: clifford+t lowering is not "
-			"implemented yet; use continuous", p->path);
 	bool ind = p->variant == 'I';
 	out->nqubits = 1u + (ind ? 1u : 0u) + (uint32_t)p->n;
 	if (out->nqubits > 62)
@@ -375,6 +372,8 @@ int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 	free(x.rot);
 	if (rc)
 		return rc;
+	if (p->gates == DW_GATES_CLIFFORD_T && dw_lower_clifford_t(out, e))
+		return e->status;
 	/* the work register: the top's ancilla pool */
 	out->nwork = out->circ->defs[out->top].pool;
 	if (out->nwork) {

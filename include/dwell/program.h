@@ -123,7 +123,14 @@ typedef struct dw_program {
 	uint32_t first_segment_op;/* index in the top's ops of segment 1 */
 	double eps_rotation;      /* synthesis error allotted to one rotation */
 	uint64_t t_per_rotation;  /* estimated T per rotation (continuous) */
+	/* clifford+t lowering (compiler/back/lower.c) */
+	uint64_t synth_rotations_planned; /* rotations of the continuous program */
+	size_t synth_distinct;    /* distinct (angle, eps) synthesised */
+	double synth_max_error;   /* largest achieved rotation error */
 } dw_program;
+
+/* Lower the program to Clifford+T in place (pg->top replaced). */
+int dw_lower_clifford_t(dw_program *pg, dw_error *e);
 
 int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 	dw_error *e);

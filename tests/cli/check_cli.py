@@ -133,7 +133,27 @@ with open(f"{tmp}/budget.yaml", "w") as f:
 rc, out, err = run("check", f"{tmp}/a/ledger.json", "--budget", f"{tmp}/budget.yaml")
 check(rc == 3 and "qubits" in err, f"check over budget: {rc} {err}")
 
-# 9. usage errors
+# 9. clifford+t: only Clifford+T gates, and the exact T-count equals the
+#    t/tdg gates of the flat program
+rc, out, err = run("compile", "samples/seesaw.yaml", "-o", f"{tmp}/ct", "--flat", "--quiet",
+                   "--set", "schedule.steps=4")
+check(rc == 0, f"clifford+t --flat: {err}")
+lc = json.loads(read(f"{tmp}/ct/ledger.json"))
+ct_ops = {}
+for line in read(f"{tmp}/ct/circuit.qasm").splitlines():
+    line = line.strip()
+    if not line or line.startswith(("//", "OPENQASM", "include", "qubit")):
+        continue
+    name = re.match(r"[a-z_0-9]+", line).group(0)
+    ct_ops[name] = ct_ops.get(name, 0) + 1
+clifford_t = {"h", "s", "sdg", "t", "tdg", "x", "y", "z", "cx", "cz", "measure", "reset"}
+check(set(ct_ops) <= clifford_t, f"only Clifford+T gates: {set(ct_ops) - clifford_t}")
+check(ct_ops.get("t", 0) + ct_ops.get("tdg", 0) == lc["t_count"] and lc["t_count"] > 0,
+      f"exact t_count {lc['t_count']} equals the t/tdg gates of the flat program")
+check(lc["t_count_estimated"] is False and lc["rotation_count"] == 0, "t_count exact")
+check(lc["synthesis"]["max_error"] <= lc["eps_rotation"], "every rotation within its share")
+
+# 10. usage errors
 rc, out, err = run("compile")
 check(rc == 1, "missing problem: usage error")
 rc, out, err = run("compile", SAMPLE, "--bogus")

@@ -42,6 +42,63 @@ static void rhs_vector(const dw_problem *p, cplx *b)
 	}
 }
 
+/* The exact normalised solution in the analysed space (2^n entries), by
+ * LAPACKE_zgesv on the dense unscaled matrix: the Pauli sum, or for a
+ * matrix file the ORIGINAL file (read again, d rows): x is put in rows
+ * 0..d-1, zero on the padding, and for a dilated problem in the upper
+ * block (top sys qubit 1: the target |1>|x>, DESIGN 3.1). */
+static int exact_solution(const dw_problem *p, cplx *xfull, dw_error *e)
+{
+	size_t N = (size_t)1 << p->n;
+	cplx *bfull = malloc(N * sizeof *bfull);
+	rhs_vector(p, bfull);
+	size_t d = N, off = 0;
+	cplx *A = NULL;
+	if (p->matrix_kind == DW_MATRIX_FILE) {
+		dw_csr *m = NULL;
+		if (dw_mtx_read_matrix(p->matrix_file, NULL, &m, e)) {
+			free(bfull);
+			return e->status;
+		}
+		d = (size_t)m->rows;
+		A = calloc(d * d, sizeof *A);
+		for (int64_t r = 0; r < m->rows; r++)
+			for (int64_t k = m->rowptr[r]; k < m->rowptr[r + 1]; k++)
+				A[(size_t)r + (size_t)m->col[k] * d] += m->val[k];
+		dw_csr_free(m);
+		if (p->dilated)
+			off = N / 2;
+	} else {
+		A = dw_pauli_dense(p, e);
+		if (!A) {
+			free(bfull);
+			return e->status;
+		}
+	}
+	/* the original b: the first d entries (padding and the dilation's
+	 * lower block are zero by construction) */
+	cplx *x = malloc(d * sizeof *x);
+	for (size_t i = 0; i < d; i++)
+		x[i] = bfull[i];
+	for (size_t i = d; i < N; i++)
+		CHECK(cabs(bfull[i]) < 1e-15, "rhs zero beyond the original rows");
+	lapack_int *ipiv = malloc(d * sizeof *ipiv);
+	int info = LAPACKE_zgesv(LAPACK_COL_MAJOR, (lapack_int)d, 1, A, (lapack_int)d, ipiv,
+		x, (lapack_int)d);
+	CHECK(info == 0, "zgesv info %d", info);
+	double nx = 0;
+	for (size_t i = 0; i < d; i++)
+		nx += creal(x[i] * conj(x[i]));
+	memset(xfull, 0, N * sizeof *xfull);
+	for (size_t i = 0; i < d; i++)
+		xfull[off + i] = x[i] / sqrt(nx);
+	free(x);
+	free(A);
+	free(ipiv);
+	free(bfull);
+	return DW_OK;
+}
+
 typedef struct counter {
 	uint64_t gates[DW_G_COUNT];
 	int64_t *t;
@@ -64,28 +121,22 @@ static int count_gate(const dw_walk_gate *g, void *ctx)
 	return 0;
 }
 
-static void run_problem(const char *path, int K)
+static void run_problem(const char *path, const char *const *sets, size_t nsets, int K)
 {
 	dw_problem p;
 	dw_error e = {0};
-	if (dw_problem_load(path, NULL, 0, &p, &e) || dw_problem_analyse(&p, &e)) {
+	if (dw_problem_load(path, sets, nsets, &p, &e) || dw_problem_analyse(&p, &e)) {
 		CHECK(0, "%s: %s", path, e.msg);
 		return;
 	}
 	size_t N = (size_t)1 << p.n;
-	/* exact solution by LAPACKE_zgesv on the dense (unscaled) matrix */
-	cplx *A = dw_pauli_dense(&p, &e);
 	cplx *x = malloc(N * sizeof *x);
-	lapack_int *ipiv = malloc(N * sizeof *ipiv);
-	rhs_vector(&p, x);
-	int info = LAPACKE_zgesv(LAPACK_COL_MAJOR, (lapack_int)N, 1, A, (lapack_int)N, ipiv,
-		x, (lapack_int)N);
-	CHECK(info == 0, "%s: zgesv info %d", path, info);
-	double nx = 0;
-	for (size_t i = 0; i < N; i++)
-		nx += creal(x[i] * conj(x[i]));
-	for (size_t i = 0; i < N; i++)
-		x[i] /= sqrt(nx);
+	if (exact_solution(&p, x, &e)) {
+		CHECK(0, "%s: exact solution: %s", path, e.msg);
+		free(x);
+		dw_problem_free(&p);
+		return;
+	}
 	bool ind = p.variant == 'I';
 	size_t D = N << (ind ? 2 : 1);   /* anc, [sgn], sys */
 	cplx *target = calloc(D, sizeof *target);
@@ -151,13 +202,14 @@ static void run_problem(const char *path, int K)
 		for (size_t j = 0; j < D; j++)
 			rho[i * D + j] -= target[i] * conj(target[j]);
 	double *w = malloc(D * sizeof *w);
-	info = LAPACKE_zheev(LAPACK_ROW_MAJOR, 'N', 'U', (lapack_int)D, rho, (lapack_int)D, w);
+	int info = LAPACKE_zheev(LAPACK_ROW_MAJOR, 'N', 'U', (lapack_int)D, rho, (lapack_int)D, w);
 	CHECK(info == 0, "zheev");
 	double td = 0;
 	for (size_t i = 0; i < D; i++)
 		td += fabs(w[i]) / 2;
-	printf("%s: variant %c, kappa %.4g, %d instances: trace distance %.4g "
-		"(precision %.3g), min fidelity %.4f, work leakage %.2g\n", path, p.variant,
+	printf("%s%s: variant %c, kappa %.4g, %d instances: trace distance %.4g "
+		"(precision %.3g), min fidelity %.4f, work leakage %.2g\n", path,
+		p.gates == DW_GATES_CLIFFORD_T ? " (clifford+t)" : "", p.variant,
 		p.kappa, K, td, p.precision, fid_min, dirty);
 	CHECK(td <= p.precision, "%s: trace distance %.4g exceeds the precision %.3g", path,
 		td, p.precision);
@@ -165,17 +217,27 @@ static void run_problem(const char *path, int K)
 	free(w);
 	free(rho);
 	free(target);
-	free(A);
 	free(x);
-	free(ipiv);
 	dw_problem_free(&p);
 }
 
+/* Arguments: problem files; "--set k=v" applies to the problems after it,
+ * "--clear" drops the overrides. */
 int main(int argc, char **argv)
 {
-	int K = 16;
-	for (int i = 1; i < argc; i++)
-		run_problem(argv[i], K);
-	CHECK(argc > 1, "at least one problem");
+	int K = 16, nprob = 0;
+	const char *sets[16];
+	size_t nsets = 0;
+	for (int i = 1; i < argc; i++) {
+		if (!strcmp(argv[i], "--set") && i + 1 < argc && nsets < 16) {
+			sets[nsets++] = argv[++i];
+		} else if (!strcmp(argv[i], "--clear")) {
+			nsets = 0;
+		} else {
+			run_problem(argv[i], sets, nsets, K);
+			nprob++;
+		}
+	}
+	CHECK(nprob > 0, "at least one problem");
 	return check_done();
 }
