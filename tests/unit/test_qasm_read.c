@@ -358,6 +358,58 @@ static void test_limits(void)
 		"deep gate chain: %s", msg);
 }
 
+/* Damaged programs: 3000 copies of a valid program with bytes deleted,
+ * duplicated or replaced must each read (and run) cleanly or fail with
+ * DW_EINPUT and a message that starts with the file name and a line.  Run
+ * under AddressSanitizer this is a memory-safety check of the reader. */
+static void test_damaged(void)
+{
+	const char *good =
+		"OPENQASM 3.0;\ninclude \"stdgates.inc\";\ninput angle th;\nqubit[3] q;\nbit[2] c;\n"
+		"const int n = 2;\ngate g(a, b) x, y { for int i in [0:1] { crz(a * i - b) x, y; } ry(b) y; }\n"
+		"h q[0];\nfor int k in [0:n-1] { ctrl @ g(pi/3, -th) q[2 * k], q[1], q[2 - 2 * k]; }\n"
+		"negctrl(2) @ x q[0], q[1], q[2]; inv @ pow(2) @ sx q[1];\n"
+		"c[0] = measure q[0]; if (c[0] == 1) { x q[1]; } else { reset q[2]; }\n"
+		"measure q[1] -> c[1]; /* end */ U(1e-3, 2.5, tau) q[2]; // done\n";
+	const char alphabet[] = "q[]();{}@,:=0123456789.-+*/ \n\"abcxyz_π";
+	char text[1024];
+	uint64_t r = 12345;
+	int ok = 0, bad = 0;
+	for (int trial = 0; trial < 3000; trial++) {
+		size_t len = strlen(good);
+		memcpy(text, good, len + 1);
+		int edits = 1 + trial % 3;
+		for (int e = 0; e < edits; e++) {
+			r = r * 6364136223846793005ull + 1442695040888963407ull;
+			size_t at = (size_t)((r >> 20) % len);
+			int kind = (int)((r >> 8) % 3);
+			char ch = alphabet[(r >> 40) % (sizeof alphabet - 1)];
+			if (kind == 0 && len > 1) {            /* delete */
+				memmove(text + at, text + at + 1, len - at);
+				len--;
+			} else if (kind == 1 && len + 2 < sizeof text) { /* duplicate */
+				memmove(text + at + 1, text + at, len - at + 1);
+				len++;
+			} else {                                 /* replace */
+				text[at] = ch;
+			}
+		}
+		char msg[1024];
+		double complex out[8];
+		dw_qasm_param th = {"th", 0.25};
+		dw_qasm_params ps = {1, &th};
+		int rc = run(text, &ps, (uint64_t)trial, out, 8, NULL, msg);
+		if (rc == DW_OK)
+			ok++;
+		else
+			bad++;
+		CHECK(rc == DW_OK || (rc == DW_EINPUT && !strncmp(msg, "t.qasm:", 7)) || (rc == DW_EINPUT
+			&& strstr(msg, "input 'th'")), "damaged program %d: status %d, %s", trial, rc, msg);
+	}
+	printf("damaged programs: %d read and ran, %d refused\n", ok, bad);
+	CHECK(ok > 50 && bad > 1000, "damaged programs: %d read, %d refused", ok, bad);
+}
+
 static void test_angle_eval(void)
 {
 	/* constants and functions (values: C math library, common practice) */
@@ -501,6 +553,7 @@ int main(void)
 	test_errors();
 	test_angle_eval();
 	test_limits();
+	test_damaged();
 	test_cli();
 	return check_done();
 }
