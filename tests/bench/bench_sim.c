@@ -137,8 +137,16 @@ int main(int argc, char **argv)
 #ifndef HAVE_LIBQUANTUM
 	peer = 0;
 #endif
-	printf("dense simulator kernels: %d thread%s, median of %d runs\n", threads,
-		threads == 1 ? "" : "s", reps);
+	char load[64] = "?";
+	FILE *lf = fopen("/proc/loadavg", "r");
+	if (lf) {
+		if (!fgets(load, sizeof load, lf))
+			snprintf(load, sizeof load, "?");
+		load[strcspn(load, "\n")] = '\0';
+		fclose(lf);
+	}
+	printf("dense simulator kernels: %d thread%s, median of %d runs, load average %s\n",
+		threads, threads == 1 ? "" : "s", reps, load);
 	printf("%-6s %-24s %10s %9s %9s %12s %8s\n", "qubits", "gate", "ms/gate", "GB/s",
 		"of copy", peer ? "libquantum" : "", peer ? "ratio" : "");
 	double *t = malloc((size_t)reps * sizeof *t);
