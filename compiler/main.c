@@ -24,6 +24,7 @@ static const command commands[] = {
 	{"compile", dw_cmd_compile, "PROBLEM.yaml [-o DIR] [--instances K] [--flat] [--set k=v]..."},
 	{"cost",    dw_cmd_cost,    "PROBLEM.yaml [--json] [--set k=v]...   (ledger only, no circuit)"},
 	{"inspect", dw_cmd_inspect, "PROBLEM.yaml [--set k=v]...   (analysis and schedule preview)"},
+	{"verify",  dw_cmd_verify,  "PROBLEM.yaml [--instances K] [--json] [--set k=v]...  (simulate, compare with x)"},
 	{"version", cmd_version, "  (print the version)"},
 	{"diff", dw_cmd_diff, "A.json B.json [--json]  (ledger deltas, per figure and per stage)"},
 	{"check", dw_cmd_check, "LEDGER.json --budget B.yaml  (exit 3 when over budget)"},

@@ -11,6 +11,7 @@
 int dw_cmd_compile(int argc, char **argv);
 int dw_cmd_cost(int argc, char **argv);
 int dw_cmd_inspect(int argc, char **argv);
+int dw_cmd_verify(int argc, char **argv);
 int dw_cmd_diff(int argc, char **argv);
 int dw_cmd_check(int argc, char **argv);
 int dw_cmd_run(int argc, char **argv);

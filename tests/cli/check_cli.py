@@ -153,7 +153,22 @@ check(ct_ops.get("t", 0) + ct_ops.get("tdg", 0) == lc["t_count"] and lc["t_count
 check(lc["t_count_estimated"] is False and lc["rotation_count"] == 0, "t_count exact")
 check(lc["synthesis"]["max_error"] <= lc["eps_rotation"], "every rotation within its share")
 
-# 10. usage errors
+# 10. verify: passes on a sample, fails (exit 3) when starved
+rc, out, err = run("verify", SAMPLE, "--json", "--instances", "8")
+check(rc == 0, f"verify passes: {rc} {err}")
+v = json.loads(out)
+for key in ("trace_distance", "fidelity", "fidelity_min", "work_clean_probability",
+            "precision", "instances", "passed"):
+    check(key in v, f"verify JSON has {key}")
+check(v["passed"] is True and v["trace_distance"] <= v["precision"] and v["instances"] == 8,
+      "verify figures")
+rc, out, err = run("verify", SAMPLE, "--json", "--set", "schedule.steps=1",
+                   "--set", "formula.steps=1")
+v = json.loads(out) if out else {}
+check(rc == 3 and v.get("passed") is False and v.get("trace_distance", 0) > 0.1,
+      f"starved verify fails with exit 3 and a large trace distance: {rc} {out}")
+
+# 11. usage errors
 rc, out, err = run("compile")
 check(rc == 1, "missing problem: usage error")
 rc, out, err = run("compile", SAMPLE, "--bogus")

@@ -12,6 +12,7 @@
 #include <string.h>
 
 #include "dwell/dwell.h"
+#include "dwell/verify.h"
 #include "check.h"
 #include "irsim.h"
 
@@ -214,6 +215,15 @@ static void run_problem(const char *path, const char *const *sets, size_t nsets,
 	CHECK(td <= p.precision, "%s: trace distance %.4g exceeds the precision %.3g", path,
 		td, p.precision);
 	CHECK(dirty < 1e-20, "%s: work qubits not returned to |0> (%.3g)", path, dirty);
+	/* `dwell verify` (emitted text -> runtime reader -> dense simulator)
+	 * must give the same figures as this independent simulation of the IR */
+	dw_verify_report vr;
+	CHECK(dw_verify(&p, K, NULL, &vr, &e) == 0, "%s: verify: %s", path, e.msg);
+	CHECK(fabs(vr.trace_distance - td) < 1e-8, "%s: verify trace distance %.12g vs %.12g",
+		path, vr.trace_distance, td);
+	CHECK(fabs(vr.fidelity_min - fid_min) < 1e-8, "%s: verify min fidelity %.12g vs %.12g",
+		path, vr.fidelity_min, fid_min);
+	CHECK(vr.passed, "%s: verify passes", path);
 	free(w);
 	free(rho);
 	free(target);
