@@ -271,21 +271,24 @@ int dw_synth_rz_opt(double theta, double eps, const dw_synth_options *opt,
 	int have = 0;
 	uint32_t candidates = 0;
 	for (int shift = 0; shift < 2; shift++) {
-		dw_synth_result r;
-		memset(&r, 0, sizeof r);
+		dw_synth_result res;
+		memset(&res, 0, sizeof res);
 		int found = 0;
-		int st = search(theta, shift, eps, opt, have ? best.denom_exp : kmax,
-			&r, &found, &candidates, err);
+		/* with the appended T, exponent k costs at least 2k - 3 T: only
+		 * k <= (best + 2) / 2 can still win */
+		int limit = have ? (int)((best.t_count + 2) / 2) : kmax;
+		int st = search(theta, shift, eps, opt, limit, &res, &found, &candidates, err);
 		if (st != DW_OK) {
+			dw_synth_result_free(&res);
 			dw_synth_result_free(&best);
 			return st;
 		}
-		if (found && (!have || r.t_count < best.t_count)) {
+		if (found && (!have || res.t_count < best.t_count)) {
 			dw_synth_result_free(&best);
-			best = r;
+			best = res;
 			have = 1;
 		} else {
-			dw_synth_result_free(&r);
+			dw_synth_result_free(&res);
 		}
 	}
 	if (!have)

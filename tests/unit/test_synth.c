@@ -1,5 +1,6 @@
 /* test_synth.c - Clifford+T synthesis: exact synthesis (exact_synth.c) and
- * z-rotation approximation (synth.c, grid_solve.c, norm_eq.c).
+ * z-rotation approximation (synth.c); the grid problems and the norm
+ * equation are tested in test_grid_norm.c.
  *
  * Outside references:
  *  - gate matrices h, s, sdg, t, tdg, x, y, z and rz(theta) =
@@ -25,12 +26,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include <gmp.h>
-#include <mpfr.h>
 
 #include "back/exact_synth.h"
-#include "back/grid_solve.h"
-#include "back/norm_eq.h"
 #include "check.h"
 #include "dwell/synth.h"
 
@@ -353,210 +350,6 @@ static void test_exact_exhaustive(void)
 		nops, TMAX);
 }
 
-/* ---------------- norm equation and factoring ---------------- */
-
-static void test_factor(void)
-{
-	/* products of known primes (GMP's own primality test and mpz_mul as
-	 * the reference) */
-	static const unsigned long primes[] = {2, 3, 7, 1009, 65537, 999983, 2147483647UL};
-	for (int it = 0; it < 50; it++) {
-		mpz_t n, back, pe;
-		mpz_inits(n, back, pe, NULL);
-		mpz_set_ui(n, 1);
-		for (int j = 0; j < 4; j++)
-			mpz_mul_ui(n, n, primes[rng_next() % 7]);
-		/* one large prime too */
-		mpz_set_ui(pe, rng_next() | 1);
-		mpz_nextprime(pe, pe);
-		mpz_mul(n, n, pe);
-		dw_factors f;
-		dw_factors_init(&f);
-		CHECK(dw_factor(&f, n, 100000) == 1, "factoring a smooth number");
-		mpz_set_ui(back, 1);
-		for (size_t i = 0; i < f.count; i++) {
-			CHECK(mpz_probab_prime_p(f.prime[i], 30) > 0, "factor is prime");
-			mpz_pow_ui(pe, f.prime[i], f.exp[i]);
-			mpz_mul(back, back, pe);
-		}
-		CHECK(mpz_cmp(back, n) == 0, "factors multiply back");
-		dw_factors_clear(&f);
-		mpz_clears(n, back, pe, NULL);
-	}
-	/* a semiprime of two 40-bit primes needs Pollard rho */
-	mpz_t p1, p2, n;
-	mpz_inits(p1, p2, n, NULL);
-	mpz_set_ui(p1, 1099511627791UL);
-	mpz_nextprime(p1, p1);
-	mpz_set_ui(p2, 1099511628211UL);
-	mpz_nextprime(p2, p2);
-	mpz_mul(n, p1, p2);
-	dw_factors f;
-	dw_factors_init(&f);
-	CHECK(dw_factor(&f, n, 2000000) == 1 && f.count == 2, "rho splits a semiprime");
-	dw_factors_clear(&f);
-	mpz_clears(p1, p2, n, NULL);
-}
-
-static void test_norm_equation(void)
-{
-	dw_zomega t, s;
-	dw_zroot2 xi, back;
-	dw_zw_init(&t);
-	dw_zw_init(&s);
-	dw_zr2_init(&xi);
-	dw_zr2_init(&back);
-	/* t^dagger t = xi for xi = s^dagger s of random s */
-	int solved = 0, tries = 0;
-	for (int it = 0; it < 300; it++) {
-		dw_zw_set_si(&s, (long)(rng_next() % 2001) - 1000, (long)(rng_next() % 2001) - 1000,
-			(long)(rng_next() % 2001) - 1000, (long)(rng_next() % 2001) - 1000);
-		if (dw_zw_is_zero(&s))
-			continue;
-		dw_zw_sqnorm(&xi, &s);
-		tries++;
-		int r = dw_norm_solve(&t, &xi, 200000);
-		CHECK(r == DW_NORM_SOLVED, "norm equation solvable by construction");
-		if (r == DW_NORM_SOLVED) {
-			solved++;
-			dw_zw_sqnorm(&back, &t);
-			CHECK(dw_zr2_equal(&back, &xi), "t^dagger t = xi exactly");
-		}
-	}
-	CHECK(solved == tries, "all %d solved", tries);
-	/* splitting rules (paper, Diophantine section; and by hand):
-	 * 3 = |1 + i sqrt2|^2, 5 = |2 + i|^2, 17 = |1 + 4i|^2 are sums of
-	 * norms; 7 = (3 + sqrt2)(3 - sqrt2) with both factors inert in
-	 * Z[omega], so t^dagger t = 7 has no solution; 2 + sqrt2 = |1 + w|^2 */
-	static const long yes[][2] = {{3, 0}, {5, 0}, {17, 0}, {2, 1}, {49, 0}};
-	for (int i = 0; i < 5; i++) {
-		dw_zr2_set_si(&xi, yes[i][0], yes[i][1]);
-		CHECK(dw_norm_solve(&t, &xi, 1000) == DW_NORM_SOLVED, "xi = %ld + %ld sqrt2 solvable",
-			yes[i][0], yes[i][1]);
-		dw_zw_sqnorm(&back, &t);
-		CHECK(dw_zr2_equal(&back, &xi), "solution exact");
-	}
-	dw_zr2_set_si(&xi, 7, 0);
-	CHECK(dw_norm_solve(&t, &xi, 1000) == DW_NORM_NO_SOLUTION, "7 is not a norm");
-	dw_zr2_set_si(&xi, 3, 1);     /* 3 + sqrt2, norm 7 */
-	CHECK(dw_norm_solve(&t, &xi, 1000) == DW_NORM_NO_SOLUTION, "3 + sqrt2 is not a norm");
-	dw_zr2_set_si(&xi, 1, 1);     /* 1 + sqrt2: bullet negative */
-	CHECK(dw_norm_solve(&t, &xi, 1000) == DW_NORM_NO_SOLUTION, "lambda not doubly positive");
-	dw_zw_clear(&t);
-	dw_zw_clear(&s);
-	dw_zr2_clear(&xi);
-	dw_zr2_clear(&back);
-}
-
-/* ---------------- grid problems against brute force ---------------- */
-
-typedef struct seen_list {
-	long v[4096][4];
-	int n;
-} seen_list;
-
-static int collect1(const dw_zroot2 *x, void *user)
-{
-	seen_list *l = user;
-	if (l->n < 4096) {
-		l->v[l->n][0] = mpz_get_si(x->a);
-		l->v[l->n][1] = mpz_get_si(x->b);
-		l->n++;
-	}
-	return 0;
-}
-
-static int collect2(const dw_zomega *a, void *user)
-{
-	seen_list *l = user;
-	if (l->n < 4096) {
-		for (int i = 0; i < 4; i++)
-			l->v[l->n][i] = mpz_get_si(a->c[i]);
-		l->n++;
-	}
-	return 0;
-}
-
-static void test_grid1(void)
-{
-	static seen_list got;
-	for (int it = 0; it < 200; it++) {
-		long double x0 = (rng_unit() - 0.5L) * 40, lx = rng_unit() * 6;
-		long double y0 = (rng_unit() - 0.5L) * 40, ly = rng_unit() * 6;
-		mpfr_t a0, a1, b0, b1;
-		mpfr_inits2(128, a0, a1, b0, b1, (mpfr_ptr)0);
-		mpfr_set_ld(a0, x0, MPFR_RNDN);
-		mpfr_set_ld(a1, x0 + lx, MPFR_RNDN);
-		mpfr_set_ld(b0, y0, MPFR_RNDN);
-		mpfr_set_ld(b1, y0 + ly, MPFR_RNDN);
-		got.n = 0;
-		CHECK(dw_grid1_solve(a0, a1, b0, b1, 100000, collect1, &got) == 0, "1-D grid ran");
-		/* brute force over a box that contains every solution */
-		int want = 0;
-		long double r2 = sqrtl(2.0L);
-		for (long a = -60; a <= 60; a++)
-			for (long b = -60; b <= 60; b++) {
-				long double v = a + b * r2, w = a - b * r2;
-				if (v >= x0 && v <= x0 + lx && w >= y0 && w <= y0 + ly) {
-					want++;
-					int found = 0;
-					for (int i = 0; i < got.n; i++)
-						found |= got.v[i][0] == a && got.v[i][1] == b;
-					CHECK(found, "1-D grid missed %ld + %ld sqrt2", a, b);
-				}
-			}
-		CHECK(got.n == want, "1-D grid count %d, brute force %d", got.n, want);
-		mpfr_clears(a0, a1, b0, b1, (mpfr_ptr)0);
-	}
-}
-
-/* every a with a/sqrt2^k in the eps-region (|u| <= 1, Re(u conj z) >=
- * 1 - eps^2/2) and |a_bullet| <= sqrt2^k, found by brute force in long
- * double, must be enumerated by dw_grid_level */
-static void test_grid2(void)
-{
-	static seen_list got;
-	const long double pi = acosl(-1.0L), r2 = sqrtl(0.5L);
-	for (int it = 0; it < 6; it++) {
-		double theta = (double)((rng_unit() - 0.5L) * 4 * pi);
-		double eps = 0.3 + 0.2 * (double)rng_unit();
-		dw_grid *g = NULL;
-		dw_error err = {0};
-		CHECK(dw_grid_create(&g, theta, 0, eps, &err) == DW_OK, "grid: %s", err.msg);
-		if (!g)
-			continue;
-		cld z = cexpl(-I * (long double)theta / 2);
-		for (int k = 0; k <= 6; k++) {
-			got.n = 0;
-			CHECK(dw_grid_level(g, k, 1000000, collect2, &got) == 0, "level ran");
-			long double s = powl(sqrtl(2.0L), k);
-			long lim = (long)s;
-			int want = 0;
-			for (long c0 = -lim; c0 <= lim; c0++)
-				for (long c1 = -lim; c1 <= lim; c1++)
-					for (long c2 = -lim; c2 <= lim; c2++)
-						for (long c3 = -lim; c3 <= lim; c3++) {
-							cld a = c0 + (c1 - c3) * r2 + I * (c2 + (c1 + c3) * r2);
-							cld ab = c0 - (c1 - c3) * r2 + I * (c2 - (c1 + c3) * r2);
-							cld u = a / s;
-							if (cabsl(u) > 1 || cabsl(ab) > s
-								|| creall(u * conjl(z)) < 1 - (long double)eps * eps / 2)
-								continue;
-							want++;
-							int found = 0;
-							for (int i = 0; i < got.n; i++)
-								found |= got.v[i][0] == c0 && got.v[i][1] == c1
-									&& got.v[i][2] == c2 && got.v[i][3] == c3;
-							CHECK(found, "grid missed (%ld,%ld,%ld,%ld) at k=%d", c0, c1, c2, c3, k);
-						}
-			CHECK(got.n >= want, "level %d: %d enumerated, %d in region", k, got.n, want);
-		}
-		double ratio = dw_grid_reduction_ratio(g);
-		CHECK(ratio > 0 && ratio < 20, "grid operator: width product / sqrt(area product) = %g", ratio);
-		dw_grid_destroy(g);
-	}
-}
-
 /* ---------------- z-rotations ---------------- */
 
 static int cmp_double(const void *a, const void *b)
@@ -717,10 +510,6 @@ int main(int argc, char **argv)
 	test_exact_small();
 	test_exact_random(400);
 	test_exact_exhaustive();
-	test_factor();
-	test_norm_equation();
-	test_grid1();
-	test_grid2();
 	test_pi4_multiples();
 	test_bad_input_and_cache();
 	/* DWELL_SYNTH_ANGLES overrides the count (the sanitizer build may use
