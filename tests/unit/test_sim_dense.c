@@ -4,12 +4,12 @@
  * matrix m on qubit t maps the pair (a[i], a[i | 2^t]), bit t of i clear,
  * to (m00 a0 + m01 a1, m10 a0 + m11 a1) where the controls hold).
  *
- * Random states of 17 qubits (2^17 amplitudes, above the OpenMP threshold:
- * low, middle and top qubits) and of 1, 3 and 12 qubits (all of them);
- * targets including the top qubit (stored in a separate half); dense, diagonal, anti-diagonal and X matrices; controls
- * and anti-controls on every side of the target; swaps; controlled
- * phases; measurement (Born rule, collapse, renormalisation); the size
- * refusal message; compaction. */
+ * Random states of 1, 3 and 12 qubits (every target, every swap pair) and
+ * of 17 qubits (2^17 amplitudes, above the OpenMP threshold: low, middle
+ * and top qubits); the top qubit lives in a separate half; dense,
+ * diagonal, anti-diagonal and X matrices; controls and anti-controls on
+ * every side of the target; swaps; controlled phases; measurement (Born
+ * rule, collapse, renormalisation); the size refusal message; compaction. */
 #include <complex.h>
 #include <math.h>
 #include <stdio.h>
