@@ -782,13 +782,17 @@ static int parse_const_decl(qx_parser *p)
 	p->pos++;
 	const qx_token *type = cur(p);
 	int integral = qx_is(type, "int") || qx_is(type, "uint");
-	if (!integral && !qx_is(type, "float") && !qx_is(type, "angle"))
-		return qx_error_at(p, type, "expected 'int', 'uint', 'float' or 'angle'");
-	p->pos++;
 	long width;
-	int st = designator(p, 1, 128, "a type width", 64, &width);
-	if (st)
-		return st;
+	int st;
+	if (type->kind == QT_IDENT && qx_is(&p->tok[p->pos + 1 < p->ntok ? p->pos + 1 : p->pos], "=")) {
+		integral = 0;   /* `const name = value;` without a type (early drafts) */
+	} else {
+		if (!integral && !qx_is(type, "float") && !qx_is(type, "angle"))
+			return qx_error_at(p, type, "expected 'int', 'uint', 'float' or 'angle'");
+		p->pos++;
+		if ((st = designator(p, 1, 128, "a type width", 64, &width)))
+			return st;
+	}
 	const qx_token *name = cur(p);
 	p->pos++;
 	if ((st = expect(p, "=")))

@@ -122,6 +122,12 @@ static void test_programs(void)
 	check_state("loop steps", "OPENQASM 3.0; include \"stdgates.inc\"; qubit[5] q;\n"
 		"for int i in [0:2:4] { x q[i]; } for uint j in [4:-2:1] { x q[j]; }", step, 32);
 
+	/* untyped const and untyped loop variable (the form of early drafts) */
+	double complex all3[8] = {0};
+	all3[7] = 1;
+	check_state("untyped const", "OPENQASM 3; include \"stdgates.inc\"; const n = 2; qubit[3] q;\n"
+		"for k in [0:n] { x q[k]; }", all3, 8);
+
 	/* a gate with parameters called with expressions:
 	 * rot(pi/2, 2*pi/3 - pi/6) = rz(pi/2) then ry(pi/2) on |0>
 	 * = e^{-i pi/4} (|0> + |1>)/sqrt 2 */
