@@ -48,6 +48,8 @@ struct dw_grid {
 	mpfr_t fe[2], fbe[2];        /* f and f_bullet as reals */
 	mpfr_t e1v[2], e2v[2], e1b[2], e2b[2];
 	mpfr_t sa, ca, sb;           /* projections on f (k = 0) */
+	mpfr_t gm[2][2];             /* |a|^2 = v^T gm v */
+	mpfr_t q[2], lim;            /* Re(a conj z) = q.v; bound 1 - eps^2/2 */
 	double ratio;
 };
 
@@ -388,11 +390,12 @@ static int choose_operator(dw_grid *g)
 static void grid_init_fields(dw_grid *g)
 {
 	mpfr_prec_t p = g->prec;
-	mpfr_inits2(p, g->zr, g->zi, g->eps, g->rt2, g->sa, g->ca, g->sb, (mpfr_ptr)0);
+	mpfr_inits2(p, g->zr, g->zi, g->eps, g->rt2, g->sa, g->ca, g->sb, g->lim, (mpfr_ptr)0);
 	for (int i = 0; i < 2; i++) {
 		for (int j = 0; j < 2; j++)
-			mpfr_inits2(p, g->dm[i][j], g->dl[i][j], g->dmi[i][j], g->dli[i][j], (mpfr_ptr)0);
-		mpfr_inits2(p, g->c[i], g->fe[i], g->fbe[i], g->e1v[i], g->e2v[i], g->e1b[i],
+			mpfr_inits2(p, g->dm[i][j], g->dl[i][j], g->dmi[i][j], g->dli[i][j],
+				g->gm[i][j], (mpfr_ptr)0);
+		mpfr_inits2(p, g->q[i], g->c[i], g->fe[i], g->fbe[i], g->e1v[i], g->e2v[i], g->e1b[i],
 			g->e2b[i], (mpfr_ptr)0);
 		dw_zr2_init(&g->e1[i]);
 		dw_zr2_init(&g->e2[i]);
@@ -404,11 +407,12 @@ void dw_grid_destroy(dw_grid *g)
 {
 	if (!g)
 		return;
-	mpfr_clears(g->zr, g->zi, g->eps, g->rt2, g->sa, g->ca, g->sb, (mpfr_ptr)0);
+	mpfr_clears(g->zr, g->zi, g->eps, g->rt2, g->sa, g->ca, g->sb, g->lim, (mpfr_ptr)0);
 	for (int i = 0; i < 2; i++) {
 		for (int j = 0; j < 2; j++)
-			mpfr_clears(g->dm[i][j], g->dl[i][j], g->dmi[i][j], g->dli[i][j], (mpfr_ptr)0);
-		mpfr_clears(g->c[i], g->fe[i], g->fbe[i], g->e1v[i], g->e2v[i], g->e1b[i],
+			mpfr_clears(g->dm[i][j], g->dl[i][j], g->dmi[i][j], g->dli[i][j],
+				g->gm[i][j], (mpfr_ptr)0);
+		mpfr_clears(g->q[i], g->c[i], g->fe[i], g->fbe[i], g->e1v[i], g->e2v[i], g->e1b[i],
 			g->e2b[i], (mpfr_ptr)0);
 		dw_zr2_clear(&g->e1[i]);
 		dw_zr2_clear(&g->e2[i]);
@@ -525,6 +529,18 @@ int dw_grid_create(dw_grid **out, double theta, int shift, double eps,
 	mpfr_neg(g->dl[0][1], g->dl[0][1], MPFR_RNDN);
 	mpfr_set(g->dl[1][0], g->dl[0][1], MPFR_RNDN);
 	inv2(g->dli, g->dl, p);
+	/* the exact region, for slicing: |a|^2 = v^T (P^T P) v with
+	 * P^T P = [[1, 1/sqrt2], [1/sqrt2, 1]]; Re(a conj z) = (P^T z).v */
+	mpfr_set_ui(g->gm[0][0], 1, MPFR_RNDN);
+	mpfr_set_ui(g->gm[1][1], 1, MPFR_RNDN);
+	mpfr_ui_div(g->gm[0][1], 1, g->rt2, MPFR_RNDN);
+	mpfr_set(g->gm[1][0], g->gm[0][1], MPFR_RNDN);
+	mpfr_set(g->q[0], g->zr, MPFR_RNDN);
+	mpfr_add(g->q[1], g->zr, g->zi, MPFR_RNDN);
+	mpfr_div(g->q[1], g->q[1], g->rt2, MPFR_RNDN);
+	mpfr_sqr(g->lim, g->eps, MPFR_RNDN);
+	mpfr_div_2ui(g->lim, g->lim, 1, MPFR_RNDN);
+	mpfr_ui_sub(g->lim, 1, g->lim, MPFR_RNDN);
 
 	int ok = choose_operator(g);
 	mpfr_clears(w, h, as, at, sc, t, r, m[0], m[1], n[0], n[1], as2, at2, ias2, iat2,
@@ -610,6 +626,66 @@ static int quad_interval(mpfr_t lo, mpfr_t hi, mpfr_t al, mpfr_t be, mpfr_t ga)
 	return ok;
 }
 
+/* Narrow [lo, hi] (values of x on the line v = x e1 + eta e2) to the exact
+ * eps-region: |a|^2 <= 2^k and Re(a conj z) >= sqrt2^k (1 - eps^2/2).
+ * The ellipse only encloses the region; without this, lines that cross the
+ * ellipse outside the unit circle would be scanned for nothing.  A relative
+ * slack of 2^(-prec/2) keeps boundary points.  Returns 0 if empty. */
+static int clip_to_region(dw_grid *g, level_state *st, mpfr_t ev, mpfr_t lo, mpfr_t hi)
+{
+	mpfr_prec_t p = g->prec;
+	mpfr_t w0[2], al, be, ga, a, b, s1, s0, t, slack;
+	mpfr_inits2(p, w0[0], w0[1], al, be, ga, a, b, s1, s0, t, slack, (mpfr_ptr)0);
+	for (int i = 0; i < 2; i++)
+		mpfr_mul(w0[i], ev, g->e2v[i], MPFR_RNDN);
+	int ok = 1;
+	quad(al, g->gm, g->e1v, g->e1v);
+	quad(be, g->gm, g->e1v, w0);
+	quad(ga, g->gm, w0, w0);
+	mpfr_sub(ga, ga, st->pow2, MPFR_RNDN);
+	if (quad_interval(a, b, al, be, ga)) {
+		if (mpfr_cmp(a, lo) > 0)
+			mpfr_set(lo, a, MPFR_RNDN);
+		if (mpfr_cmp(b, hi) < 0)
+			mpfr_set(hi, b, MPFR_RNDN);
+	} else {
+		ok = 0;
+	}
+	/* x (e1.q) + (eta e2).q >= sqrt2^k lim */
+	mpfr_mul(s1, g->e1v[0], g->q[0], MPFR_RNDN);
+	mpfr_mul(t, g->e1v[1], g->q[1], MPFR_RNDN);
+	mpfr_add(s1, s1, t, MPFR_RNDN);
+	mpfr_mul(s0, w0[0], g->q[0], MPFR_RNDN);
+	mpfr_mul(t, w0[1], g->q[1], MPFR_RNDN);
+	mpfr_add(s0, s0, t, MPFR_RNDN);
+	mpfr_mul(t, st->pow, g->lim, MPFR_RNDN);
+	mpfr_sub(t, t, s0, MPFR_RNDN);
+	if (ok && !mpfr_zero_p(s1)) {
+		mpfr_div(t, t, s1, MPFR_RNDN);
+		if (mpfr_sgn(s1) > 0) {
+			if (mpfr_cmp(t, lo) > 0)
+				mpfr_set(lo, t, MPFR_RNDN);
+		} else if (mpfr_cmp(t, hi) < 0) {
+			mpfr_set(hi, t, MPFR_RNDN);
+		}
+	} else if (ok && mpfr_sgn(t) > 0) {
+		ok = 0;
+	}
+	if (ok) {
+		/* slack, relative to the size of the numbers involved */
+		mpfr_abs(slack, lo, MPFR_RNDN);
+		mpfr_abs(t, hi, MPFR_RNDN);
+		mpfr_add(slack, slack, t, MPFR_RNDN);
+		mpfr_add_ui(slack, slack, 1, MPFR_RNDN);
+		mpfr_mul_2si(slack, slack, -(long)(p / 2), MPFR_RNDN);
+		mpfr_sub(lo, lo, slack, MPFR_RNDD);
+		mpfr_add(hi, hi, slack, MPFR_RNDU);
+		ok = mpfr_cmp(lo, hi) <= 0;
+	}
+	mpfr_clears(w0[0], w0[1], al, be, ga, a, b, s1, s0, t, slack, (mpfr_ptr)0);
+	return ok;
+}
+
 static int visit_eta(const dw_zroot2 *eta, void *user)
 {
 	level_state *st = user;
@@ -634,6 +710,8 @@ static int visit_eta(const dw_zroot2 *eta, void *user)
 	quad(ga, g->dm, w, w);
 	mpfr_sub(ga, ga, st->pow2, MPFR_RNDN);
 	int ok = quad_interval(lo, hi, al, be, ga);
+	if (ok)
+		ok = clip_to_region(g, st, ev, lo, hi);
 	if (ok) {
 		quad(al, g->dl, g->e1b, g->e1b);
 		quad(be, g->dl, g->e1b, wb);

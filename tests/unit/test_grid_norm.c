@@ -253,22 +253,42 @@ static void test_grid2(void)
 
 /* a = alpha + i beta + c w (c = 0, 1; alpha, beta in Z[sqrt2]):
  * Re a = alpha + c/sqrt2, Im a = beta + c/sqrt2,
- * Re a_b = alpha_b - c/sqrt2, Im a_b = beta_b - c/sqrt2.  Count the a with a
+ * Re a_b = alpha_b - c/sqrt2, Im a_b = beta_b - c/sqrt2.  Scan the a with a
  * in sqrt2^k E (E the enclosing ellipse of docs/synth.md: centre
  * (1 - w/2) z, semi-axes sqrt2 w/2 along z and sqrt2 h across, w = eps^2/2,
- * h = sqrt(2w - w^2)) and |a_bullet| <= sqrt2^k. */
+ * h = sqrt(2w - w^2)) and |a_bullet| <= sqrt2^k, and count those in the
+ * eps-region itself. */
 enum { CP = 320 };
 
 typedef struct coset_ctx {
 	mpfr_t cx, cy, e00, e01, e11, pk, off;
+	mpfr_t x, zr, zi, lim;       /* current Re a; z; sqrt2^k (1 - eps^2/2) */
 	int coset;
 	long count;
 } coset_ctx;
 
+/* count the point if it lies in the eps-region itself: |a|^2 <= 2^k and
+ * Re(a) zr + Im(a) zi >= sqrt2^k (1 - eps^2/2) */
 static int coset_beta(const dw_zroot2 *b, void *user)
 {
-	(void)b;
-	((coset_ctx *)user)->count++;
+	coset_ctx *c = user;
+	mpfr_t y, t, u;
+	mpfr_inits2(CP, y, t, u, (mpfr_ptr)0);
+	mpfr_sqrt_ui(t, 2, MPFR_RNDN);
+	mpfr_mul_z(t, t, b->b, MPFR_RNDN);
+	mpfr_add_z(y, t, b->a, MPFR_RNDN);
+	if (c->coset)
+		mpfr_add(y, y, c->off, MPFR_RNDN);
+	mpfr_sqr(t, c->x, MPFR_RNDN);
+	mpfr_sqr(u, y, MPFR_RNDN);
+	mpfr_add(t, t, u, MPFR_RNDN);
+	int in = mpfr_cmp(t, c->pk) <= 0;
+	mpfr_mul(t, c->x, c->zr, MPFR_RNDN);
+	mpfr_mul(u, y, c->zi, MPFR_RNDN);
+	mpfr_add(t, t, u, MPFR_RNDN);
+	in = in && mpfr_cmp(t, c->lim) >= 0;
+	c->count += in;
+	mpfr_clears(y, t, u, (mpfr_ptr)0);
 	return 0;
 }
 
@@ -286,6 +306,7 @@ static int coset_alpha(const dw_zroot2 *al, void *user)
 		mpfr_add(x, x, c->off, MPFR_RNDN);
 		mpfr_sub(xb, xb, c->off, MPFR_RNDN);
 	}
+	mpfr_set(c->x, x, MPFR_RNDN);
 	/* slice of the ellipse at Re a = x: e11 dy^2 + 2 e01 dx dy + e00 dx^2 <= 1 */
 	mpfr_sub(t, x, c->cx, MPFR_RNDN);
 	mpfr_mul(bb, c->e01, t, MPFR_RNDN);
@@ -327,6 +348,7 @@ static long coset_count(double theta, double eps, int k)
 {
 	coset_ctx c;
 	mpfr_t zr, zi, w, h, sc, as2, at2, t, a, b, sk, hw, lo, hi, lob, hib;
+	mpfr_inits2(CP, c.x, c.zr, c.zi, c.lim, (mpfr_ptr)0);
 	mpfr_inits2(CP, c.cx, c.cy, c.e00, c.e01, c.e11, c.pk, c.off, zr, zi, w, h, sc, as2,
 		at2, t, a, b, sk, hw, lo, hi, lob, hib, (mpfr_ptr)0);
 	mpfr_sqrt_ui(t, 2, MPFR_RNDN);
@@ -345,6 +367,10 @@ static long coset_count(double theta, double eps, int k)
 	mpfr_set_ui(c.pk, 1, MPFR_RNDN);
 	mpfr_mul_2si(c.pk, c.pk, k, MPFR_RNDN);
 	mpfr_sqrt(sk, c.pk, MPFR_RNDN);
+	mpfr_set(c.zr, zr, MPFR_RNDN);
+	mpfr_set(c.zi, zi, MPFR_RNDN);
+	mpfr_ui_sub(c.lim, 1, w, MPFR_RNDN);
+	mpfr_mul(c.lim, c.lim, sk, MPFR_RNDN);
 	mpfr_div_2ui(a, w, 1, MPFR_RNDN);
 	mpfr_ui_sub(sc, 1, a, MPFR_RNDN);
 	mpfr_mul(sc, sc, sk, MPFR_RNDN);
@@ -394,20 +420,40 @@ static long coset_count(double theta, double eps, int k)
 		}
 		dw_grid1_solve(lo, hi, lob, hib, 100000000, coset_alpha, &c);
 	}
+	mpfr_clears(c.x, c.zr, c.zi, c.lim, (mpfr_ptr)0);
 	mpfr_clears(c.cx, c.cy, c.e00, c.e01, c.e11, c.pk, c.off, zr, zi, w, h, sc, as2, at2,
 		t, a, b, sk, hw, lo, hi, lob, hib, (mpfr_ptr)0);
 	return c.count;
 }
 
+typedef struct region_count {
+	dw_grid *g;
+	int k;
+	long n;
+} region_count;
+
+/* count a grid point if it is in the eps-region (|a|^2 <= 2^k exactly,
+ * Re(a conj z) by the grid's own MPFR test) */
 static int count_visit(const dw_zomega *a, void *user)
 {
-	(void)a;
-	(*(long *)user)++;
+	region_count *rc = user;
+	dw_zroot2 sq, d;
+	dw_zr2_init(&sq);
+	dw_zr2_init(&d);
+	dw_zw_sqnorm(&sq, a);
+	mpz_set_ui(d.a, 1);
+	mpz_mul_2exp(d.a, d.a, (mp_bitcnt_t)rc->k);
+	mpz_set_ui(d.b, 0);
+	dw_zr2_sub(&d, &d, &sq);
+	if (dw_zr2_sign(&d) >= 0 && dw_grid_in_region(rc->g, a, rc->k))
+		rc->n++;
+	dw_zr2_clear(&sq);
+	dw_zr2_clear(&d);
 	return 0;
 }
 
 /* the grid-operator scan and the coset scan find the same number of points
- * at exponents where there are hundreds of them */
+ * of the eps-region at exponents where there are hundreds of them */
 static void test_grid2_coset(void)
 {
 	const long double pi = acosl(-1.0L);
@@ -423,8 +469,9 @@ static void test_grid2_coset(void)
 		if (!g)
 			continue;
 		for (int dk = 0; dk < 2; dk++) {
-			long grid_n = 0;
-			CHECK(dw_grid_level(g, k + dk, 10000000, count_visit, &grid_n) == 0, "level ran");
+			region_count rc = {g, k + dk, 0};
+			CHECK(dw_grid_level(g, k + dk, 10000000, count_visit, &rc) == 0, "level ran");
+			long grid_n = rc.n;
 			long coset_n = coset_count(theta, eps, k + dk);
 			CHECK(grid_n == coset_n && grid_n > 0,
 				"theta %.17g eps %g k %d: grid scan %ld points, coset scan %ld",
