@@ -1,11 +1,12 @@
 /* grid_solve.h - the grid problems of z-rotation synthesis.
  *
  * Takes: theta and eps.  Gives, for each denominator exponent k, the
- * points a in Z[omega] with a in sqrt2^k * E (E an ellipse enclosing the
- * eps-region R_eps = {|u| <= 1, Re(u conj(z)) >= 1 - eps^2/2},
- * z = e^{-i theta/2}) and a_bullet in the disk of radius sqrt2^k; plus the
- * exact-enough (MPFR) membership test for R_eps and the achieved error.
- * Also the one-dimensional grid problem over Z[sqrt2] (docs/synth.md). */
+ * points a in Z[omega] with a / sqrt2^k in the eps-region
+ * R_eps = {|u| <= 1, Re(u conj(z)) >= 1 - eps^2/2}, z = e^{-i theta/2} (up
+ * to a relative slack of 2^-(prec/2); an enclosing ellipse E drives the
+ * scan) and a_bullet in the disk of radius sqrt2^k; plus the MPFR
+ * membership test for R_eps and the achieved error (grid_solve.c).  Also
+ * the one-dimensional grid problem over Z[sqrt2] (grid_1d.c). */
 #ifndef DWELL_BACK_GRID_SOLVE_H
 #define DWELL_BACK_GRID_SOLVE_H
 
@@ -36,7 +37,7 @@ int dw_grid_create(dw_grid **out, double theta, int shift, double eps,
 void dw_grid_destroy(dw_grid *g);
 
 /* Enumerate the candidates of exponent k (each point once; points
- * divisible by sqrt2 included).  Returns 1 if the visitor stopped, 0 when
+ * divisible by sqrt2 included; the caller filters with dw_grid_in_region).  Returns 1 if the visitor stopped, 0 when
  * exhausted, -1 when the candidate count exceeded max_points. */
 int dw_grid_level(dw_grid *g, int k, uint64_t max_points,
 	dw_grid2_visit visit, void *user);

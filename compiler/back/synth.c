@@ -10,9 +10,12 @@
  * and u in the eps-region (MPFR), solve t^dagger t = 1 - u^dagger u
  * (norm_eq.c; a candidate whose norm cannot be factored within the effort
  * bound is skipped), and synthesise U = [[u, -t^dagger], [t, u^dagger]]
- * exactly (exact_synth.c).  The first success has the least denominator
- * exponent reachable with the factoring effort, hence T-count about 2k.
- * Angles within eps of a multiple of pi/4 are answered by T^m directly. */
+ * exactly (exact_synth.c).  The first success fixes the least denominator
+ * exponent reachable with the factoring effort (T-count about 2k); a few
+ * more solutions at that exponent are compared.  The search is run for
+ * rz(theta) and for rz(theta - pi/4) followed by T (the other class up to
+ * global phase) and the lower T-count is kept.  Angles within eps of a
+ * multiple of pi/4 are answered by T^m directly. */
 #include "dwell/synth.h"
 
 #include <math.h>
