@@ -13,6 +13,7 @@
 #include "dwell/formula.h"
 #include "dwell/emit.h"
 #include "dwell/qasm.h"
+#include "dwell/synth.h"
 #include "dwell/sim.h"
 #include "dwell/json.h"
 #include "dwell/audit.h"
