@@ -3,7 +3,8 @@
 # Runs apt-get update first; uses sudo when not root.  Safe to run twice.
 set -eu
 pkgs="meson ninja-build pkg-config gcc libopenblas-dev liblapacke-dev libyaml-dev
-      libgmp-dev libmpfr-dev python3 python3-numpy python3-scipy libquantum-dev"
+      libgmp-dev libmpfr-dev python3 python3-numpy python3-scipy python3-mpmath
+      libquantum-dev"
 if [ "$(id -u)" -ne 0 ]; then SUDO=sudo; else SUDO=; fi
 missing=
 for p in $pkgs; do

@@ -245,6 +245,8 @@ static void write_json(FILE *f, const dw_ledger *L)
 	ju(f, g->two_qubit_count);
 	fprintf(f, ",\n  \"measure_count\": ");
 	ju(f, g->measure_count);
+	fprintf(f, ",\n  \"classically_controlled_count\": ");
+	ju(f, g->cond_count);
 	fprintf(f, ",\n  \"depth\": %lld,\n  \"t_depth\": %lld,\n", (long long)g->depth,
 		(long long)g->t_depth);
 	fprintf(f, "  \"counts_saturated\": %s,\n", g->saturated ? "true" : "false");
@@ -300,6 +302,12 @@ static void write_json(FILE *f, const dw_ledger *L)
 		"output state to the target; it is split into path (eigenpath following, bound "
 		"sum of squared path steps), split (product-formula error, commutator or norm "
 		"bound), synth (rotation synthesis, reserved) and data shares that add up\",\n");
+	if (pg->problem->uncompute == DW_UNCOMPUTE_MEASURE)
+		fprintf(f, "    \"uncompute: measure: temporary logical-ANDs (4 T) are erased by "
+			"X-basis measurement and classically controlled cz/x gates; those gates are "
+			"counted in gates and depth as if always applied (they are applied with "
+			"probability 1/2); depth counts a measurement and waits for it before the "
+			"gates it controls\",\n");
 	fprintf(f, "    \"the output is an average over instances (random dwell times): the "
 		"figures are those of one instance\",\n");
 	fprintf(f, "    \"not counted: state-preparation success, readout of x, classical "
@@ -364,6 +372,8 @@ void dw_ledger_table(const dw_ledger *L, FILE *f)
 	row_u(f, "clifford_count", g->clifford_count);
 	row_u(f, "two_qubit_count", g->two_qubit_count);
 	row_u(f, "measure_count", g->measure_count);
+	if (g->cond_count)
+		row_u(f, "classically_controlled", g->cond_count);
 	row_u(f, "depth", (uint64_t)g->depth);
 	row_u(f, "t_depth", (uint64_t)g->t_depth);
 	if (g->saturated)

@@ -264,6 +264,8 @@ static uint32_t lower_def(lctx *L, uint32_t id, const double *params)
 		return DW_NO_DEF;
 	}
 	dw_add_ancillas(b, d->nanc);
+	if (d->nbits)
+		dw_add_bits(b, d->nbits);
 	int rc = DW_OK;
 	for (size_t i = 0; i < L->c->defs[id].nops && rc == DW_OK; i++) {
 		d = &L->c->defs[id];            /* defs may move as we add */
@@ -277,7 +279,12 @@ static uint32_t lower_def(lctx *L, uint32_t id, const double *params)
 		memcpy(qs, d->qs + o.q, o.nq * sizeof *qs);
 		for (uint32_t k = 0; k < o.na; k++)
 			vals[k] = dw_expr_eval(&d->ex[o.a + k], params);
-		if (o.kind == DW_OP_GATE) {
+		if (o.kind == DW_OP_GATE && o.gate == DW_G_MEASURE) {
+			dw_measure(b, qs[0], o.bit);
+		} else if (o.kind == DW_OP_GATE && o.cond) {
+			/* classically controlled Paulis and cz are Clifford already */
+			dw_cond_gate(b, o.bit, (dw_gate)o.gate, qs);
+		} else if (o.kind == DW_OP_GATE) {
 			rc = lower_gate(L, b, (dw_gate)o.gate, qs, vals);
 		} else {
 			uint32_t sub = lower_def(L, o.callee, vals);

@@ -83,31 +83,65 @@ static void emit_ops(FILE *f, const dw_circuit *c, const dw_def *d,
 			fprintf(f, "%sfor int i in [1:%llu] {\n", indent, (unsigned long long)o->reps);
 			in = qn->top ? "    " : "        ";
 		}
+		if (o->kind == DW_OP_GATE && o->gate == DW_G_MEASURE) {
+			fprintf(f, "%sm[%u] = measure ", in, o->bit);
+			qname(f, qn, d->qs[o->q]);
+			fputs(";\n", f);
+			continue;
+		}
+		if (o->kind == DW_OP_GATE && o->cond)
+			fprintf(f, "%sif (m[%u]) { ", in, o->bit);
+		else
+			fputs(in, f);
 		const char *name = o->kind == DW_OP_GATE ? dw_gates[o->gate].name
 			: c->defs[o->callee].name;
-		fprintf(f, "%s%s", in, name);
-		if (o->na) {
+		bool subroutine = o->kind == DW_OP_CALL && !c->defs[o->callee].unitary;
+		fputs(name, f);
+		if (subroutine) {
+			/* def call: name(params..., qubits...) */
+			const dw_def *cd = &c->defs[o->callee];
 			fputc('(', f);
-			for (uint32_t k = 0; k < o->na; k++) {
+			uint32_t k = 0;
+			for (; k < o->na; k++) {
 				if (k)
 					fputs(", ", f);
 				print_expr(f, &d->ex[o->a + k]);
 			}
-			fputc(')', f);
-		}
-		uint32_t nq = o->nq;
-		for (uint32_t k = 0; k < nq; k++) {
-			fputs(k ? ", " : " ", f);
-			qname(f, qn, d->qs[o->q + k]);
-		}
-		if (o->kind == DW_OP_CALL) {
-			const dw_def *cd = &c->defs[o->callee];
-			for (uint32_t k = 0; k < cd->pool; k++) {
-				fputs(nq + k ? ", " : " ", f);
-				qname(f, qn, d->nargs + d->nanc + k);
+			for (uint32_t j = 0; j < o->nq; j++, k++) {
+				if (k)
+					fputs(", ", f);
+				qname(f, qn, d->qs[o->q + j]);
 			}
+			for (uint32_t j = 0; j < cd->pool; j++, k++) {
+				if (k)
+					fputs(", ", f);
+				qname(f, qn, d->nargs + d->nanc + j);
+			}
+			fputs(");\n", f);
+		} else {
+			if (o->na) {
+				fputc('(', f);
+				for (uint32_t k = 0; k < o->na; k++) {
+					if (k)
+						fputs(", ", f);
+					print_expr(f, &d->ex[o->a + k]);
+				}
+				fputc(')', f);
+			}
+			uint32_t nq = o->nq;
+			for (uint32_t k = 0; k < nq; k++) {
+				fputs(k ? ", " : " ", f);
+				qname(f, qn, d->qs[o->q + k]);
+			}
+			if (o->kind == DW_OP_CALL) {
+				const dw_def *cd = &c->defs[o->callee];
+				for (uint32_t k = 0; k < cd->pool; k++) {
+					fputs(nq + k ? ", " : " ", f);
+					qname(f, qn, d->nargs + d->nanc + k);
+				}
+			}
+			fputs(o->kind == DW_OP_GATE && o->cond ? "; }\n" : ";\n", f);
 		}
-		fputs(";\n", f);
 		if (o->kind == DW_OP_CALL && o->reps > 1)
 			fprintf(f, "%s}\n", indent);
 	}
@@ -118,17 +152,30 @@ static void emit_def(FILE *f, const dw_circuit *c, uint32_t id, const dw_program
 	const dw_def *d = &c->defs[id];
 	if (d->stage != DW_STAGE_NONE)
 		fprintf(f, "// stage: %s\n", dw_stage_names[d->stage]);
-	fprintf(f, "gate %s", d->name);
-	if (d->nparams) {
-		fputc('(', f);
-		for (uint32_t k = 0; k < d->nparams; k++)
-			fprintf(f, "%sp%u", k ? ", " : "", k);
-		fputc(')', f);
-	}
 	uint32_t nq = d->nargs + d->pool;
-	for (uint32_t k = 0; k < nq; k++)
-		fprintf(f, "%sq%u", k ? ", " : " ", k);
-	fputs(" {\n", f);
+	if (!d->unitary) {
+		/* measurement inside: a subroutine, qubits passed as arguments */
+		fprintf(f, "def %s(", d->name);
+		uint32_t k = 0;
+		for (uint32_t i = 0; i < d->nparams; i++, k++)
+			fprintf(f, "%sfloat[64] p%u", k ? ", " : "", i);
+		for (uint32_t i = 0; i < nq; i++, k++)
+			fprintf(f, "%squbit q%u", k ? ", " : "", i);
+		fputs(") {\n", f);
+		if (d->nbits)
+			fprintf(f, "    bit[%u] m;\n", d->nbits);
+	} else {
+		fprintf(f, "gate %s", d->name);
+		if (d->nparams) {
+			fputc('(', f);
+			for (uint32_t k = 0; k < d->nparams; k++)
+				fprintf(f, "%sp%u", k ? ", " : "", k);
+			fputc(')', f);
+		}
+		for (uint32_t k = 0; k < nq; k++)
+			fprintf(f, "%sq%u", k ? ", " : " ", k);
+		fputs(" {\n", f);
+	}
 	qnames qn = {pg, false};
 	emit_ops(f, c, d, &qn, "    ", pg);
 	fputs("}\n\n", f);
@@ -148,7 +195,7 @@ static int postorder(const dw_circuit *c, uint32_t id, unsigned char *seen,
 	return 0;
 }
 
-static void header(FILE *f, const dw_program *pg)
+static void header(FILE *f, const dw_program *pg, bool flat)
 {
 	const dw_problem *p = pg->problem;
 	fprintf(f, "OPENQASM 3.0;\ninclude \"stdgates.inc\";\n\n");
@@ -165,6 +212,18 @@ static void header(FILE *f, const dw_program *pg)
 		p->variant == 'I' ? "|+>" : "");
 	for (int r = 0; r < pg->nreg; r++)
 		fprintf(f, "qubit[%u] %s;\n", pg->reg[r].size, pg->reg[r].name);
+	if (flat) {
+		/* one bit register for the whole expanded program: a definition's
+		 * measurement is read right after it, so local indices can share */
+		uint32_t nb = 0;
+		for (size_t i = 0; i < pg->circ->ndefs; i++)
+			if (pg->circ->defs[i].nbits > nb)
+				nb = pg->circ->defs[i].nbits;
+		if (nb)
+			fprintf(f, "bit[%u] m;\n", nb);
+	} else if (pg->circ->defs[pg->top].nbits) {
+		fprintf(f, "bit[%u] m;\n", pg->circ->defs[pg->top].nbits);
+	}
 	fputc('\n', f);
 }
 
@@ -177,6 +236,14 @@ static int flat_gate(const dw_walk_gate *g, void *ctx)
 {
 	flatctx *fc = ctx;
 	const dw_gate_info *gi = &dw_gates[g->gate];
+	if (g->gate == DW_G_MEASURE) {
+		fprintf(fc->f, "m[%u] = measure ", g->bit);
+		top_qubit(fc->f, fc->pg, g->qubits[0]);
+		fputs(";\n", fc->f);
+		return ferror(fc->f) ? DW_EINTERNAL : 0;
+	}
+	if (g->cond)
+		fprintf(fc->f, "if (m[%u]) { ", g->bit);
 	fputs(gi->name, fc->f);
 	if (gi->nangles) {
 		fputc('(', fc->f);
@@ -188,14 +255,14 @@ static int flat_gate(const dw_walk_gate *g, void *ctx)
 		fputs(k ? ", " : " ", fc->f);
 		top_qubit(fc->f, fc->pg, g->qubits[k]);
 	}
-	fputs(";\n", fc->f);
+	fputs(g->cond ? "; }\n" : ";\n", fc->f);
 	return ferror(fc->f) ? DW_EINTERNAL : 0;
 }
 
 int dw_qasm_write(const dw_program *pg, FILE *f, bool flat, dw_error *e)
 {
 	const dw_circuit *c = pg->circ;
-	header(f, pg);
+	header(f, pg, flat);
 	if (flat) {
 		uint32_t nq = pg->nqubits + pg->nwork;
 		uint32_t *map = malloc((nq ? nq : 1) * sizeof *map);

@@ -130,9 +130,12 @@ void dw_circuit_free(dw_circuit *c)
 	free(c);
 }
 
+#define DW_MAX_BITS 64
+
 struct dw_builder {
 	dw_circuit *c;
 	dw_def d;
+	uint32_t bit_source[DW_MAX_BITS]; /* last qubit measured into each bit */
 	size_t capo, capq, cape;
 	int failed;       /* 0, or a DW_E* status */
 	char why[160];
@@ -151,6 +154,8 @@ dw_builder *dw_begin(dw_circuit *c, const char *name, uint32_t nargs,
 	b->d.stage = stage;
 	b->d.inverse = DW_NO_DEF;
 	b->d.unitary = true;
+	for (int i = 0; i < DW_MAX_BITS; i++)
+		b->bit_source[i] = UINT32_MAX;
 	if (nparams > 255) {
 		b->failed = DW_EINTERNAL;
 		snprintf(b->why, sizeof b->why, "too many parameters (%u)", nparams);
@@ -244,6 +249,52 @@ void dw_gate_op(dw_builder *b, dw_gate g, const uint32_t *qubits, const dw_expr 
 	push_op(b, op, qubits, angles);
 }
 
+uint32_t dw_add_bits(dw_builder *b, uint32_t k)
+{
+	uint32_t first = b->d.nbits;
+	if (b->d.nbits + k > 65535 || b->d.nbits + k > DW_MAX_BITS)
+		bfail(b, DW_EINTERNAL, "too many classical bits in one definition");
+	else
+		b->d.nbits += k;
+	return first;
+}
+
+void dw_measure(dw_builder *b, uint32_t q, uint32_t bit)
+{
+	if (bit >= b->d.nbits) {
+		bfail(b, DW_EINTERNAL, "measurement into an undeclared bit");
+		return;
+	}
+	dw_op op = {0};
+	op.kind = DW_OP_GATE;
+	op.gate = DW_G_MEASURE;
+	op.reps = 1;
+	op.nq = 1;
+	op.bit = (uint16_t)bit;
+	b->d.unitary = false;
+	b->bit_source[bit] = q;
+	push_op(b, op, &q, NULL);
+}
+
+void dw_cond_gate(dw_builder *b, uint32_t bit, dw_gate g, const uint32_t *qubits)
+{
+	if (bit >= b->d.nbits || b->bit_source[bit] == UINT32_MAX ||
+	    dw_gates[g].nangles || (dw_gates[g].flags & DW_GF_NONUNITARY)) {
+		bfail(b, DW_EINTERNAL, "bad classically controlled gate");
+		return;
+	}
+	dw_op op = {0};
+	op.kind = DW_OP_GATE;
+	op.gate = (uint8_t)g;
+	op.reps = 1;
+	op.nq = (uint32_t)dw_gates[g].nqubits;
+	op.cond = 1;
+	op.bit = (uint16_t)bit;
+	op.condq = b->bit_source[bit];
+	b->d.unitary = false;
+	push_op(b, op, qubits, NULL);
+}
+
 void dw_g1(dw_builder *b, dw_gate g, uint32_t q)
 {
 	dw_gate_op(b, g, &q, NULL);
@@ -305,11 +356,11 @@ static uint64_t fnv(uint64_t h, const void *p, size_t n)
 static uint64_t def_hash(const dw_def *d)
 {
 	uint64_t h = 1469598103934665603ULL;
-	uint32_t hdr[4] = {d->nargs, d->nanc, d->nparams, (uint32_t)d->stage};
+	uint32_t hdr[5] = {d->nargs, d->nanc, d->nparams, (uint32_t)d->stage, d->nbits};
 	h = fnv(h, hdr, sizeof hdr);
 	for (size_t i = 0; i < d->nops; i++) {
 		const dw_op *o = &d->ops[i];
-		uint64_t w[4] = {o->kind, o->gate, o->callee, o->reps};
+		uint64_t w[7] = {o->kind, o->gate, o->callee, o->reps, o->cond, o->bit, o->condq};
 		h = fnv(h, w, sizeof w);
 		if (o->nq)
 			h = fnv(h, d->qs + o->q, o->nq * sizeof *d->qs);
@@ -322,13 +373,15 @@ static uint64_t def_hash(const dw_def *d)
 static bool def_equal(const dw_def *a, const dw_def *b)
 {
 	if (a->nargs != b->nargs || a->nanc != b->nanc || a->nparams != b->nparams ||
+	    a->nbits != b->nbits ||
 	    a->stage != b->stage || a->nops != b->nops || a->nqs != b->nqs ||
 	    a->nex != b->nex)
 		return false;
 	for (size_t i = 0; i < a->nops; i++) {
 		const dw_op *x = &a->ops[i], *y = &b->ops[i];
 		if (x->kind != y->kind || x->gate != y->gate || x->callee != y->callee ||
-		    x->reps != y->reps || x->nq != y->nq || x->na != y->na)
+		    x->reps != y->reps || x->nq != y->nq || x->na != y->na ||
+		    x->cond != y->cond || x->bit != y->bit || x->condq != y->condq)
 			return false;
 	}
 	return (a->nqs == 0 || !memcmp(a->qs, b->qs, a->nqs * sizeof *a->qs)) &&
@@ -516,7 +569,8 @@ static int walk_rec(const dw_circuit *c, uint32_t id, const uint32_t *map,
 				q[k] = map[d->qs[o->q + k]];
 			for (uint32_t k = 0; k < o->na; k++)
 				a[k] = dw_expr_eval(&d->ex[o->a + k], params);
-			dw_walk_gate g = {(dw_gate)o->gate, q, a, st};
+			dw_walk_gate g = {(dw_gate)o->gate, o->cond != 0, o->bit,
+				o->cond ? map[o->condq] : 0, q, a, st};
 			int r = fn(&g, user);
 			if (r)
 				return r;

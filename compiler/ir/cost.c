@@ -24,6 +24,7 @@ typedef struct mat {
 
 struct dw_cost {
 	uint64_t gates[DW_STAGE_COUNT][DW_G_COUNT];
+	uint64_t cond[DW_STAGE_COUNT];   /* classically controlled gates */
 	bool counted;
 	bool saturated;
 	mat depth, tdepth;
@@ -76,6 +77,8 @@ static int count_def(dw_circuit *c, uint32_t id, dw_error *e)
 		const dw_op *o = &c->defs[id].ops[i];
 		if (o->kind == DW_OP_GATE) {
 			k->gates[d->stage][o->gate] = dw_add_sat(k->gates[d->stage][o->gate], 1, &sat);
+			if (o->cond)
+				k->cond[d->stage] = dw_add_sat(k->cond[d->stage], 1, &sat);
 			continue;
 		}
 		if (count_def(c, o->callee, e))
@@ -90,6 +93,7 @@ static int count_def(dw_circuit *c, uint32_t id, dw_error *e)
 				uint64_t v = dw_mul_sat(ck->gates[s][g], o->reps, &sat);
 				k->gates[to][g] = dw_add_sat(k->gates[to][g], v, &sat);
 			}
+			k->cond[to] = dw_add_sat(k->cond[to], dw_mul_sat(ck->cond[s], o->reps, &sat), &sat);
 		}
 	}
 	k->saturated = sat != 0;
@@ -221,18 +225,29 @@ static int build_matrix(dw_circuit *c, uint32_t id, const weighting *w,
 		const dw_op *o = &d->ops[oi];
 		const uint32_t *qs = d->qs + o->q;
 		if (o->kind == DW_OP_GATE) {
+			/* a classically controlled gate also waits for the measured qubit */
+			uint32_t wires[4];
+			uint32_t nw = o->nq;
+			memcpy(wires, qs, o->nq * sizeof *wires);
+			if (o->cond) {
+				bool dup = false;
+				for (uint32_t t = 0; t < o->nq; t++)
+					dup |= wires[t] == o->condq;
+				if (!dup)
+					wires[nw++] = o->condq;
+			}
 			int64_t wt = gate_weight(w, (dw_gate)o->gate, eff);
 			for (uint32_t j = 0; j < m; j++) {
 				int64_t best = NEG;
-				for (uint32_t t = 0; t < o->nq; t++) {
-					int64_t r = R[(size_t)qs[t] * m + j];
+				for (uint32_t t = 0; t < nw; t++) {
+					int64_t r = R[(size_t)wires[t] * m + j];
 					if (r > best)
 						best = r;
 				}
 				v[j] = sat_add(best, wt, sat);
 			}
-			for (uint32_t t = 0; t < o->nq; t++)
-				memcpy(R + (size_t)qs[t] * m, v, m * sizeof *v);
+			for (uint32_t t = 0; t < nw; t++)
+				memcpy(R + (size_t)wires[t] * m, v, m * sizeof *v);
 			continue;
 		}
 		/* call: callee ports = its args (mapped by qs) then its pool
@@ -374,8 +389,10 @@ int dw_cost_figures(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e)
 	if (count_def(c, id, e))
 		return e->status;
 	int sat = c->defs[id].cost->saturated;
-	for (int s = 0; s < DW_STAGE_COUNT; s++)
+	for (int s = 0; s < DW_STAGE_COUNT; s++) {
 		fill_counts(out, c->defs[id].cost->gates[s], &sat);
+		out->cond_count = dw_add_sat(out->cond_count, c->defs[id].cost->cond[s], &sat);
+	}
 	derive(out, &sat);
 	bool dsat = false;
 	const mat *m;
@@ -400,6 +417,7 @@ int dw_cost_stage_figures(dw_circuit *c, uint32_t id, dw_stage s,
 	const dw_cost *k = c->defs[id].cost;
 	int sat = k->saturated;
 	fill_counts(out, k->gates[s], &sat);
+	out->cond_count = k->cond[s];
 	/* at the top level, unlabelled gates are "other" (stage NONE) */
 	derive(out, &sat);
 	bool dsat = false;

@@ -196,7 +196,7 @@ static int build_circuit(ctx *x)
 	if (V == DW_NO_DEF)
 		return e->status;
 	uint32_t Vinv = dw_inverse(x->c, V, e);
-	uint32_t mcz = dw_mcz_def(x->c, x->nq, e);
+	uint32_t mcz = dw_mcz_def(x->c, x->nq, p->uncompute == DW_UNCOMPUTE_MEASURE, e);
 	if (Vinv == DW_NO_DEF || mcz == DW_NO_DEF)
 		return e->status;
 	uint32_t rest[64], all[64];

@@ -88,6 +88,9 @@ enum { DW_OP_GATE, DW_OP_CALL };
 typedef struct dw_op {
 	uint8_t kind;         /* DW_OP_GATE or DW_OP_CALL */
 	uint8_t gate;         /* dw_gate for DW_OP_GATE */
+	uint8_t cond;         /* gates: 1 = applied only when local bit `bit` is 1 */
+	uint16_t bit;         /* measure: destination bit; conditional: bit tested */
+	uint32_t condq;       /* conditional: the local qubit measured into `bit` */
 	uint32_t callee;      /* definition id for DW_OP_CALL */
 	uint64_t reps;        /* calls: repetitions (a loop when > 1); gates: 1 */
 	uint32_t nq, q;       /* qubit operands: def->qs[q .. q+nq) */
@@ -99,6 +102,7 @@ typedef struct dw_cost dw_cost;
 typedef struct dw_def {
 	char name[64];        /* unique OpenQASM identifier */
 	uint32_t nargs, nanc, nparams;
+	uint32_t nbits;       /* local classical bits (measurement results) */
 	uint32_t pool;        /* ancillas needed: nanc + max callee pool */
 	dw_stage stage;
 	dw_op *ops;
@@ -139,6 +143,12 @@ void dw_g3(dw_builder *b, dw_gate g, uint32_t q0, uint32_t q1, uint32_t q2);
 void dw_r1(dw_builder *b, dw_gate g, uint32_t q, dw_expr angle);
 void dw_call(dw_builder *b, uint32_t callee, const uint32_t *qubits,
 	const dw_expr *params, uint64_t reps);
+/* Measurement-based pieces: local bits, measure into a bit, and a gate
+ * applied only when a bit is 1 (the definition becomes non-unitary and is
+ * emitted as an OpenQASM `def`). */
+uint32_t dw_add_bits(dw_builder *b, uint32_t k);                /* first index */
+void dw_measure(dw_builder *b, uint32_t q, uint32_t bit);
+void dw_cond_gate(dw_builder *b, uint32_t bit, dw_gate g, const uint32_t *qubits);
 /* Finish: returns the id (an existing one when identical), or DW_NO_DEF with
  * e filled (bad operands, allocation failure).  The builder is freed. */
 uint32_t dw_end(dw_builder *b, dw_error *e);
@@ -151,6 +161,9 @@ uint32_t dw_inverse(dw_circuit *c, uint32_t id, dw_error *e);
  * simulation in tests) ---- */
 typedef struct dw_walk_gate {
 	dw_gate gate;
+	bool cond;                /* applied only when the bit is 1 */
+	uint32_t bit;             /* measure: destination; cond: tested (local) */
+	uint32_t cond_qubit;      /* cond: the absolute qubit measured into it */
 	const uint32_t *qubits;   /* absolute qubit indices */
 	const double *angles;     /* evaluated angles */
 	dw_stage stage;           /* effective stage (NONE at top level) */
@@ -169,6 +182,7 @@ typedef struct dw_figures {
 	uint64_t gates[DW_G_COUNT];   /* primitive gates of the expanded program */
 	uint64_t gate_count, t_count_exact, toffoli_count, rotation_count,
 		clifford_count, two_qubit_count, measure_count;
+	uint64_t cond_count;          /* classically controlled gates (counted as applied) */
 	int64_t depth, t_depth;       /* t_depth: rotations weigh t_weight_rotation */
 	bool saturated;               /* some figure hit 2^64-1 (or 2^62 for depth) */
 } dw_figures;

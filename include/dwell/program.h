@@ -150,7 +150,12 @@ uint32_t dw_stateprep_def(dw_circuit *c, const dw_problem *p, dw_error *e);
 uint32_t dw_stateprep_amplitudes(dw_circuit *c, int n, const double complex *amps,
 	dw_error *e);
 
-/* Multi-controlled Z on k qubits (I - 2|1..1><1..1|), with clean ancillas. */
-uint32_t dw_mcz_def(dw_circuit *c, uint32_t k, dw_error *e);
+/* Multi-controlled Z on k qubits (I - 2|1..1><1..1|), with clean ancillas:
+ * a Toffoli ladder, or (measure) temporary ANDs erased by measurement. */
+uint32_t dw_mcz_def(dw_circuit *c, uint32_t k, bool measure, dw_error *e);
+/* Temporary logical-AND (a, b, t=|0>) -> (a, b, ab), 4 T; and its erasure
+ * by measurement (non-unitary: an OpenQASM def). */
+uint32_t dw_and_compute_def(dw_circuit *c, dw_error *e);
+uint32_t dw_and_erase_def(dw_circuit *c, dw_error *e);
 
 #endif

@@ -191,7 +191,7 @@ static void test_mcz(void)
 	for (uint32_t k = 1; k <= 6; k++) {
 		dw_circuit *c = dw_circuit_new();
 		dw_error e = {0};
-		uint32_t d = dw_mcz_def(c, k, &e);
+		uint32_t d = dw_mcz_def(c, k, false, &e);
 		uint32_t nq = dw_def_qubits(c, d);
 		CHECK(nq == k + (k >= 4 ? k - 3 : 0), "mcz %u uses %u qubits", k, nq);
 		uint32_t map[16];
@@ -216,6 +216,44 @@ static void test_mcz(void)
 				(unsigned long long)f.toffoli_count);
 		dw_circuit_free(c);
 	}
+}
+
+/* temporary logical-AND: |a, b, 0> -> |a, b, ab> exactly, 4 T ("Halving
+ * the cost of quantum addition", Quantum 2, 74, 2018); the measured
+ * multi-controlled Z uses 4(k-2) T, k-2 measurements, no Toffoli */
+static void test_and_gadget(void)
+{
+	dw_circuit *c = dw_circuit_new();
+	dw_error e = {0};
+	uint32_t d = dw_and_compute_def(c, &e);
+	uint32_t map[3] = {0, 1, 2};
+	for (size_t ab = 0; ab < 4; ab++) {
+		irsim s;
+		irsim_init(&s, 3);
+		s.psi[0] = 0;
+		s.psi[ab] = 1;
+		irsim_apply(&s, c, d, map, NULL);
+		size_t want = ab | (ab == 3 ? 4 : 0);
+		double err = 0;
+		for (size_t i = 0; i < 8; i++)
+			err = fmax(err, cabs(s.psi[i] - (i == want ? 1 : 0)));
+		CHECK(err < 1e-12, "AND on |%zu>: err %.3g", ab, err);
+		free(s.psi);
+	}
+	dw_figures f;
+	dw_cost_figures(c, d, &f, &e);
+	CHECK(f.t_count_exact == 4, "AND T-count %llu", (unsigned long long)f.t_count_exact);
+	for (uint32_t k = 3; k <= 7; k++) {
+		uint32_t m = dw_mcz_def(c, k, true, &e);
+		dw_cost_figures(c, m, &f, &e);
+		CHECK(f.t_count_exact == 4 * (k - 2) && f.toffoli_count == 0,
+			"measured mcz %u: %llu T", k, (unsigned long long)f.t_count_exact);
+		CHECK(f.measure_count == k - 2 && f.cond_count == 2 * (k - 2),
+			"measured mcz %u: %llu measurements, %llu controlled", k,
+			(unsigned long long)f.measure_count, (unsigned long long)f.cond_count);
+		CHECK(!c->defs[m].unitary, "measured mcz is not unitary");
+	}
+	dw_circuit_free(c);
 }
 
 /* U_b |0> equals b (normalised) up to a global phase */
@@ -387,6 +425,7 @@ int main(void)
 	test_symmetrisation('I');
 	test_pauli_rotations();
 	test_mcz();
+	test_and_gadget();
 	test_stateprep();
 	test_reflection('P');
 	test_reflection('I');
