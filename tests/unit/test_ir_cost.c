@@ -19,6 +19,7 @@ static uint32_t pick(uint32_t n) { return (uint32_t)(next() % n); }
 
 typedef struct brute {
 	uint64_t gates[DW_G_COUNT];
+	uint64_t cond;
 	int64_t *t, *tt, *ts;
 	dw_stage st;
 	double rot_w;
@@ -29,17 +30,30 @@ static int visit(const dw_walk_gate *g, void *ctx)
 	brute *b = ctx;
 	const dw_gate_info *gi = &dw_gates[g->gate];
 	b->gates[g->gate]++;
+	if (g->cond)
+		b->cond++;
 	int64_t m = 0, mt = 0, ms = 0;
-	for (int i = 0; i < gi->nqubits; i++) {
-		uint32_t q = g->qubits[i];
+	uint32_t wires[4];
+	int nw = gi->nqubits;
+	for (int i = 0; i < nw; i++)
+		wires[i] = g->qubits[i];
+	if (g->cond) {
+		bool dup = false;
+		for (int i = 0; i < gi->nqubits; i++)
+			dup |= wires[i] == g->cond_qubit;
+		if (!dup)
+			wires[nw++] = g->cond_qubit;
+	}
+	for (int i = 0; i < nw; i++) {
+		uint32_t q = wires[i];
 		if (b->t[q] > m) m = b->t[q];
 		if (b->tt[q] > mt) mt = b->tt[q];
 		if (b->ts[q] > ms) ms = b->ts[q];
 	}
 	int64_t wt = (gi->flags & DW_GF_ROTATION) ? (int64_t)ceil(b->rot_w) : gi->t_depth;
 	int64_t ws = g->stage == b->st ? 1 : 0;
-	for (int i = 0; i < gi->nqubits; i++) {
-		uint32_t q = g->qubits[i];
+	for (int i = 0; i < nw; i++) {
+		uint32_t q = wires[i];
 		b->t[q] = m + 1;
 		b->tt[q] = mt + wt;
 		b->ts[q] = ms + ws;
@@ -90,6 +104,18 @@ static uint32_t random_def(dw_circuit *c, uint32_t *made, size_t nmade, dw_error
 				continue;
 			}
 		}
+		if (kind == 3 && pick(3) == 0) {
+			/* measure a qubit, then a classically controlled cz / x */
+			uint32_t bit = dw_add_bits(b, 1);
+			uint32_t mq = pick(nq), a = pick(nq), bq = (a + 1) % nq;
+			dw_measure(b, mq, bit);
+			uint32_t two[2] = {a, bq};
+			if (pick(2))
+				dw_cond_gate(b, bit, DW_G_CZ, two);
+			else
+				dw_cond_gate(b, bit, DW_G_X, &a);
+			continue;
+		}
 		if (kind == 1) {
 			uint32_t a = pick(nq), bq = pick(nq);
 			if (a == bq) bq = (a + 1) % nq;
@@ -137,6 +163,8 @@ static void compare(dw_circuit *c, uint32_t top)
 			CHECK(f.t_depth == maxof(b.tt, nq), "t_depth %lld vs %lld",
 				(long long)f.t_depth, (long long)maxof(b.tt, nq));
 			CHECK(!f.saturated, "not saturated");
+			CHECK(f.cond_count == b.cond, "classically controlled %llu vs %llu",
+				(unsigned long long)f.cond_count, (unsigned long long)b.cond);
 		}
 		CHECK(fs.depth == maxof(b.ts, nq), "stage %s depth %lld vs %lld",
 			dw_stage_names[s], (long long)fs.depth, (long long)maxof(b.ts, nq));

@@ -112,11 +112,16 @@ static int count_gate(const dw_walk_gate *g, void *ctx)
 	c->gates[g->gate]++;
 	int64_t m = 0;
 	int nq = dw_gates[g->gate].nqubits;
+	uint32_t w[4] = {0, 0, 0, 0};
 	for (int i = 0; i < nq; i++)
-		if (c->t[g->qubits[i]] > m)
-			m = c->t[g->qubits[i]];
+		w[i] = g->qubits[i];
+	if (g->cond && g->cond_qubit != w[0] && (nq < 2 || g->cond_qubit != w[1]))
+		w[nq++] = g->cond_qubit;   /* waits for the measurement */
 	for (int i = 0; i < nq; i++)
-		c->t[g->qubits[i]] = m + 1;
+		if (c->t[w[i]] > m)
+			m = c->t[w[i]];
+	for (int i = 0; i < nq; i++)
+		c->t[w[i]] = m + 1;
 	if (m + 1 > c->depth)
 		c->depth = m + 1;
 	return 0;
