@@ -7,8 +7,8 @@
  * rhs |0>|b>), and the dimension is padded with the diagonal block alpha*I
  * (rhs zero there), so the scaled spectrum stays inside [1/kappa, 1] and the
  * solution's padding part is zero.  The result replaces p->matrix.
- * Dense LAPACKE (zheevd / zgesdd) up to 4096 rows; beyond that, and for
- * stencils, a clear refusal for now. */
+ * Dense LAPACKE (zheevd / zgesdd) up to 4096 rows; beyond that a clear
+ * refusal.  Stencils: closed forms in stencil_spectrum.c. */
 #include <complex.h>
 #include <math.h>
 #include <stdio.h>
@@ -19,6 +19,7 @@
 
 #include "dwell/mtx.h"
 #include "dwell/problem.h"
+#include "dwell/stencil.h"
 
 /* Dense analysis limits: 2^12 rows for Pauli sums, 4096 rows for files. */
 #define DENSE_MAX_QUBITS 12
@@ -389,9 +390,13 @@ int dw_problem_analyse(dw_problem *p, dw_error *err)
 		return analyse_pauli(p, err);
 	case DW_MATRIX_FILE:
 		return analyse_file(p, err);
-	case DW_MATRIX_STENCIL:
-		return dw_fail_at(err, DW_EINPUT, p->path, 0, "matrix.stencil: stencil "
-			"analysis not yet implemented");
+	case DW_MATRIX_STENCIL: {
+		dw_stencil_spectrum s;     /* stencil_spectrum.c: closed forms */
+		if (dw_stencil_analyse(p, &s, err)
+				|| settle(p, s.alpha, s.sigma_min, s.lmin, s.lmax, s.source, err))
+			return err->status;
+		return dw_stencil_finish(p, &s, err);
+	}
 	}
 	return dw_fail(err, DW_EINTERNAL, "unknown matrix kind");
 }

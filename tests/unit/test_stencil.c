@@ -1,0 +1,525 @@
+/* test_stencil.c - stencils: arithmetic, closed-form spectra, lowering.
+ *  - increments (plain and controlled, and their inverses) and comparators
+ *    with a constant against integer arithmetic on every input, widths up
+ *    to 6, ancillas back to |0>;
+ *  - kappa and the extreme eigenvalues against the closed forms of
+ *    "Iterative methods for sparse linear systems" (SIAM 2003) as listed in
+ *    METHODS 11.1 (1-D N = 4 eigenvalues and kappa; cot^2(pi/(2(N+1))) at
+ *    N = 8 and 2^20; the 2-D formula for Nx != Ny), the periodic circulant
+ *    eigenvalues 2 - 2 cos(2 pi k / N) (common practice), and dense
+ *    LAPACKE (zheevd / zgesvd) on matrices this test builds itself from the
+ *    DESIGN 3.3 convention;
+ *  - every term of X_anc (x) [X_sgn (x)] A/alpha: the definition's unitary
+ *    U(theta) on the subspace where scratch qubits are |0> (they must come
+ *    back to |0>), T = 2i dU/dtheta at 0 Hermitian with ||T|| <= norm,
+ *    U(1.3) = exp(-i 1.3/2 T) by an eigendecomposition, and sum_k cb_k T_k
+ *    equal to X_anc (x) [X_sgn (x)] A/alpha with A built here: 1-D, 2-D and
+ *    3-D grids, both boundaries and mixed, 3-, 5-, 9-point stencils,
+ *    offsets 1 to 4, non-symmetric stencils (dilation) and variant I. */
+#include <complex.h>
+#include <lapacke.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "dwell/dwell.h"
+#include "check.h"
+#include "irsim.h"
+
+typedef double complex cplx;
+
+static char tmpdir[64];
+
+/* ---- arithmetic ---- */
+
+/* Run definition id (nargs args + pool) on basis input `in`; returns the
+ * output basis index of the args, or -1 when the result is not a basis
+ * state with the ancillas at |0>. */
+static int64_t run_basis(dw_circuit *c, uint32_t id, uint64_t in)
+{
+	uint32_t nq = dw_def_qubits(c, id);
+	uint32_t map[64];
+	for (uint32_t q = 0; q < nq; q++)
+		map[q] = q;
+	irsim s;
+	irsim_init(&s, (int)nq);
+	s.psi[0] = 0;
+	s.psi[in] = 1;
+	irsim_apply(&s, c, id, map, NULL);
+	int64_t out = -1;
+	for (size_t i = 0; i < s.dim; i++)
+		if (cabs(s.psi[i]) > 1e-9) {
+			if (out >= 0 || cabs(s.psi[i]) < 1 - 1e-9 || (i >> c->defs[id].nargs))
+				out = -2;
+			else
+				out = (int64_t)i;
+		}
+	free(s.psi);
+	return out < 0 ? -1 : out;
+}
+
+static void test_arith(void)
+{
+	dw_error e = {0};
+	for (uint32_t w = 1; w <= 6; w++) {
+		dw_circuit *c = dw_circuit_new();
+		uint32_t inc = dw_increment_def(c, w, false, &e);
+		uint32_t cinc = dw_increment_def(c, w, true, &e);
+		uint32_t dec = dw_inverse(c, inc, &e);
+		uint32_t cdec = dw_inverse(c, cinc, &e);
+		CHECK(inc != DW_NO_DEF && cinc != DW_NO_DEF && dec != DW_NO_DEF && cdec != DW_NO_DEF,
+			"%s", e.msg);
+		uint64_t N = 1u << w;
+		int bad = 0;
+		for (uint64_t x = 0; x < N; x++) {
+			bad += run_basis(c, inc, x) != (int64_t)((x + 1) % N);
+			bad += run_basis(c, dec, x) != (int64_t)((x + N - 1) % N);
+			for (uint64_t ctl = 0; ctl < 2; ctl++) {
+				uint64_t in = ctl | x << 1;
+				uint64_t up = ctl ? (x + 1) % N : x, dn = ctl ? (x + N - 1) % N : x;
+				bad += run_basis(c, cinc, in) != (int64_t)(ctl | up << 1);
+				bad += run_basis(c, cdec, in) != (int64_t)(ctl | dn << 1);
+			}
+		}
+		CHECK(bad == 0, "increments of width %u: %d wrong outputs", w, bad);
+		/* Toffoli counts as documented: 2(w-2) plain (w >= 3), 2(w-1) controlled */
+		dw_figures f;
+		dw_cost_figures(c, inc, &f, &e);
+		CHECK(f.toffoli_count == (w >= 3 ? 2 * (w - 2) : 0), "toffolis %llu (w %u)",
+			(unsigned long long)f.toffoli_count, w);
+		dw_cost_figures(c, cinc, &f, &e);
+		CHECK(f.toffoli_count == 2 * (w - 1), "controlled toffolis %llu (w %u)",
+			(unsigned long long)f.toffoli_count, w);
+		bad = 0;
+		for (uint64_t bound = 1; bound < N; bound++) {
+			uint32_t lt = dw_less_const_def(c, w, bound, &e);
+			CHECK(lt != DW_NO_DEF, "%s", e.msg);
+			for (uint64_t z = 0; z < N; z++)
+				for (uint64_t t = 0; t < 2; t++) {
+					uint64_t want = z | (t ^ (z < bound)) << w;
+					bad += run_basis(c, lt, z | t << w) != (int64_t)want;
+				}
+		}
+		CHECK(bad == 0, "comparators of width %u: %d wrong outputs", w, bad);
+		dw_circuit_free(c);
+	}
+}
+
+/* ---- problems ---- */
+
+static int load(const char *yaml, dw_problem *p, dw_error *e)
+{
+	static int serial;
+	char path[128];
+	snprintf(path, sizeof path, "%s/p%d.yaml", tmpdir, serial++);
+	FILE *f = fopen(path, "w");
+	fputs(yaml, f);
+	fclose(f);
+	int rc = dw_problem_load(path, NULL, 0, p, e);
+	if (!rc)
+		rc = dw_problem_analyse(p, e);
+	remove(path);
+	return rc;
+}
+
+/* Dense A (row-major, N x N) from the raw points by the DESIGN 3.3
+ * convention: A[j][j+o] += c, Dirichlet drops, periodic wraps. */
+static cplx *stencil_dense(const dw_stencil *st, int64_t *Nout)
+{
+	int64_t n[3] = {st->shape[0], st->dims > 1 ? st->shape[1] : 1,
+		st->dims > 2 ? st->shape[2] : 1};
+	int64_t N = n[0] * n[1] * n[2];
+	cplx *A = calloc((size_t)(N * N), sizeof *A);
+	for (int64_t j = 0; j < N; j++) {
+		int64_t x[3] = {j % n[0], (j / n[0]) % n[1], j / (n[0] * n[1])};
+		for (size_t k = 0; k < st->npoints; k++) {
+			int64_t col = 0, stride = 1;
+			bool in = true;
+			for (int a = 0; a < 3; a++) {
+				int64_t y = x[a] + (a < st->dims ? st->offset[k][a] : 0);
+				if (y < 0 || y >= n[a]) {
+					if (st->periodic[a])
+						y = (y % n[a] + n[a]) % n[a];
+					else
+						in = false;
+				}
+				col += y * stride;
+				stride *= n[a];
+			}
+			if (in)
+				A[j * N + col] += st->coeff[k];
+		}
+	}
+	*Nout = N;
+	return A;
+}
+
+static void test_spectra(void)
+{
+	dw_problem p;
+	dw_error e = {0};
+	/* METHODS 11.1: 1-D Dirichlet N = 4: {0.38196601, ..., 3.61803399}, kappa 9.47213595 */
+	CHECK(load("matrix: {stencil: {shape: [4], points: {\"0\": 2, \"-1\": -1, \"+1\": -1}}}\n"
+		"rhs: {uniform: true}\n", &p, &e) == 0, "%s", e.msg);
+	CHECK_NEAR(p.lambda_min, 0.38196601, 1e-8, "N=4 lambda_min");
+	CHECK_NEAR(p.lambda_max, 3.61803399, 1e-8, "N=4 lambda_max");
+	CHECK_NEAR(p.kappa, 9.47213595, 1e-7, "N=4 kappa");
+	CHECK(!strcmp(p.kappa_source, "closed-form-sine"), "source %s", p.kappa_source);
+	CHECK(p.variant == 'P' && p.n == 2, "variant %c n %d", p.variant, p.n);
+	dw_problem_free(&p);
+	/* kappa = cot^2(pi / (2 (N + 1))) (METHODS 11.1) at N = 8 and 2^20 */
+	int64_t sizes[2] = {8, 1 << 20};
+	for (int i = 0; i < 2; i++) {
+		char y[256];
+		snprintf(y, sizeof y, "matrix: {stencil: {shape: [%lld], points: {\"0\": 2, "
+			"\"-1\": -1, \"+1\": -1}}}\nrhs: {uniform: true}\n", (long long)sizes[i]);
+		CHECK(load(y, &p, &e) == 0, "%s", e.msg);
+		double t = 1 / tan(M_PI / (2.0 * (double)(sizes[i] + 1)));
+		CHECK(fabs(p.kappa / (t * t) - 1) < 1e-9, "N=%lld kappa %.12g vs %.12g",
+			(long long)sizes[i], p.kappa, t * t);
+		dw_problem_free(&p);
+	}
+	/* 2-D, Nx != Ny (METHODS 11.1):
+	 * kappa = [sin^2(Nx pi/(2(Nx+1))) + sin^2(Ny pi/(2(Ny+1)))] /
+	 *         [sin^2(pi/(2(Nx+1))) + sin^2(pi/(2(Ny+1)))] */
+	int64_t nx[2] = {8, 1 << 20}, ny[2] = {4, 1 << 10};
+	for (int i = 0; i < 2; i++) {
+		char y[320];
+		snprintf(y, sizeof y, "matrix: {stencil: {shape: [%lld, %lld], points: {\"0,0\": 4, "
+			"\"-1,0\": -1, \"+1,0\": -1, \"0,-1\": -1, \"0,+1\": -1}}}\nrhs: {uniform: true}\n",
+			(long long)nx[i], (long long)ny[i]);
+		CHECK(load(y, &p, &e) == 0, "%s", e.msg);
+		double X = (double)nx[i], Y = (double)ny[i];
+		double s1 = sin(X * M_PI / (2 * (X + 1))), s2 = sin(Y * M_PI / (2 * (Y + 1)));
+		double s3 = sin(M_PI / (2 * (X + 1))), s4 = sin(M_PI / (2 * (Y + 1)));
+		double k = (s1 * s1 + s2 * s2) / (s3 * s3 + s4 * s4);
+		CHECK(fabs(p.kappa / k - 1) < 1e-9, "2-D %lldx%lld kappa %.12g vs %.12g",
+			(long long)nx[i], (long long)ny[i], p.kappa, k);
+		CHECK(p.n == (i ? 30 : 5), "n %d", p.n);
+		dw_problem_free(&p);
+	}
+	/* periodic circulant: 2.5 - 2 cos(2 pi k/N) in [0.5, 4.5] (common practice) */
+	CHECK(load("matrix: {stencil: {shape: [16], boundary: periodic, points: {\"0\": 2.5, "
+		"\"-1\": -1, \"+1\": -1}}}\nrhs: {uniform: true}\n", &p, &e) == 0, "%s", e.msg);
+	CHECK_NEAR(p.kappa, 9.0, 1e-12, "shifted periodic kappa");
+	CHECK(!strcmp(p.kappa_source, "closed-form-fourier"), "source %s", p.kappa_source);
+	dw_problem_free(&p);
+	/* the pure periodic Laplacian is singular (k = 0): refused with figures */
+	e.status = 0;
+	CHECK(load("matrix: {stencil: {shape: [16], boundary: periodic, points: {\"0\": 2, "
+		"\"-1\": -1, \"+1\": -1}}}\nrhs: {uniform: true}\n", &p, &e) == DW_EINPUT
+		&& strstr(e.msg, "singular") && strstr(e.msg, "largest 4"), "%s", e.msg);
+	dw_problem_free(&p);
+	e = (dw_error){0};
+
+	/* against dense LAPACKE on matrices built here */
+	static const char *const cases[] = {
+		/* indefinite shifted Laplacian, Dirichlet (sine modes, nearest root) */
+		"{shape: [32], points: {\"0\": 0.9, \"-1\": -1, \"+1\": -1}}",
+		/* 2-D indefinite, mixed boundaries (sorted search) */
+		"{shape: [8, 16], boundary: [dirichlet, periodic], points: {\"0,0\": 1.3, "
+		"\"-1,0\": -1, \"+1,0\": -1, \"0,-1\": -1, \"0,+1\": -1}}",
+		/* 9-point, Dirichlet (dense fallback) */
+		"{shape: [8, 4], points: {\"0,0\": 5, \"-1,0\": -1, \"+1,0\": -1, \"0,-1\": -1, "
+		"\"0,+1\": -1, \"1,1\": -0.25, \"-1,-1\": -0.25, \"1,-1\": -0.5, \"-1,1\": -0.5}}",
+		/* 9-point periodic (every symbol value) */
+		"{shape: [8, 8], boundary: periodic, points: {\"0,0\": 5, \"-1,0\": -1, "
+		"\"+1,0\": -1, \"0,-1\": -1, \"0,+1\": -1, \"1,1\": -0.25, \"-1,-1\": -0.25}}",
+		/* wide 1-D stencil, offsets to 4, periodic (symbol list) and Dirichlet (dense) */
+		"{shape: [64], boundary: periodic, points: {\"0\": 3, \"1\": -1, \"-1\": -1, "
+		"\"2\": 0.4, \"-2\": 0.4, \"3\": -0.2, \"-3\": -0.2, \"4\": 0.1, \"-4\": 0.1}}",
+		"{shape: [64], points: {\"0\": 3, \"1\": -1, \"-1\": -1, \"2\": 0.4, \"-2\": 0.4, "
+		"\"3\": -0.2, \"-3\": -0.2, \"4\": 0.1, \"-4\": 0.1}}",
+		/* non-symmetric (upwind advection-diffusion), both boundaries: dilation */
+		"{shape: [16], points: {\"0\": 2.2, \"-1\": -1.5, \"+1\": -0.5}}",
+		"{shape: [16], boundary: periodic, points: {\"0\": 2.2, \"-1\": -1.5, \"+1\": -0.5}}",
+		/* 3-D 7-point, periodic on axis 1 */
+		"{shape: [4, 4, 2], boundary: [dirichlet, periodic, dirichlet], points: {\"0,0,0\": 6.5, "
+		"\"1,0,0\": -1, \"-1,0,0\": -1, \"0,1,0\": -1, \"0,-1,0\": -1, \"0,0,1\": -1, "
+		"\"0,0,-1\": -1}}",
+	};
+	for (size_t i = 0; i < sizeof cases / sizeof *cases; i++) {
+		char y[700];
+		snprintf(y, sizeof y, "matrix: {stencil: %s}\nrhs: {basis: 1}\n", cases[i]);
+		if (load(y, &p, &e)) {
+			CHECK(0, "case %zu: %s", i, e.msg);
+			e = (dw_error){0};
+			dw_problem_free(&p);
+			continue;
+		}
+		int64_t N;
+		cplx *A = stencil_dense(&p.stencil, &N);
+		double *sv = malloc((size_t)N * sizeof *sv);
+		/* singular values by zgesvd (LAPACKE), row-major */
+		cplx *cp = malloc((size_t)(N * N) * sizeof *cp);
+		memcpy(cp, A, (size_t)(N * N) * sizeof *cp);
+		double *superb = malloc((size_t)N * sizeof *superb);
+		int info = LAPACKE_zgesvd(LAPACK_ROW_MAJOR, 'N', 'N', (lapack_int)N, (lapack_int)N,
+			cp, (lapack_int)N, sv, NULL, 1, NULL, 1, superb);
+		CHECK(info == 0, "zgesvd");
+		bool sym = true;
+		for (int64_t r = 0; r < N; r++)
+			for (int64_t c = 0; c < N; c++)
+				sym = sym && A[r * N + c] == A[c * N + r];
+		CHECK(p.dilated == !sym, "case %zu: dilated %d, symmetric %d", i, p.dilated, sym);
+		CHECK_NEAR(p.alpha, sv[0], 1e-9 * sv[0], "alpha");
+		CHECK_NEAR(p.sigma_min, sv[N - 1], 1e-9 * sv[0], "sigma_min");
+		if (sym) {
+			double *w = malloc((size_t)N * sizeof *w);
+			memcpy(cp, A, (size_t)(N * N) * sizeof *cp);
+			info = LAPACKE_zheev(LAPACK_ROW_MAJOR, 'N', 'U', (lapack_int)N, cp,
+				(lapack_int)N, w);
+			CHECK(info == 0, "zheev");
+			CHECK_NEAR(p.lambda_min, w[0], 1e-9 * sv[0], "lambda_min");
+			CHECK_NEAR(p.lambda_max, w[N - 1], 1e-9 * sv[0], "lambda_max");
+			CHECK(p.variant == (w[0] > 0 ? 'P' : 'I'), "variant");
+			free(w);
+		}
+		printf("spectrum case %zu: %s, kappa %.10g, %s%s\n", i, p.kappa_source, p.kappa,
+			sym ? "symmetric" : "non-symmetric (dilated)", p.variant == 'I' ? ", indefinite" : "");
+		free(A);
+		free(cp);
+		free(sv);
+		free(superb);
+		dw_problem_free(&p);
+	}
+}
+
+/* ---- lowering ---- */
+
+/* U (D x D, row-major, D = 2^nargs) of definition id with parameter th on
+ * the clean subspace; *leak = largest scratch weight left. */
+static void def_unitary(dw_circuit *c, uint32_t id, double th, cplx *U, double *leak)
+{
+	uint32_t na = c->defs[id].nargs, nq = dw_def_qubits(c, id);
+	size_t D = (size_t)1 << na;
+	uint32_t map[64];
+	for (uint32_t q = 0; q < nq; q++)
+		map[q] = q;
+	for (size_t in = 0; in < D; in++) {
+		irsim s;
+		irsim_init(&s, (int)nq);
+		s.psi[0] = 0;
+		s.psi[in] = 1;
+		irsim_apply(&s, c, id, map, &th);
+		for (size_t i = 0; i < s.dim; i++) {
+			if (i < D)
+				U[i * D + in] = s.psi[i];
+			else if (cabs(s.psi[i]) > *leak)
+				*leak = cabs(s.psi[i]);
+		}
+		free(s.psi);
+	}
+}
+
+/* Embed the D_loc x D_loc operator on top-level qubits q[0..k) into the
+ * full D x D (n top-level qubits) by acting as identity elsewhere. */
+static void embed_add(cplx *full, int n, const cplx *loc, const uint32_t *q, uint32_t k,
+	double scale)
+{
+	size_t D = (size_t)1 << n, Dl = (size_t)1 << k;
+	uint64_t mask = 0;
+	for (uint32_t i = 0; i < k; i++)
+		mask |= UINT64_C(1) << q[i];
+	for (size_t r = 0; r < D; r++) {
+		size_t lr = 0;
+		for (uint32_t i = 0; i < k; i++)
+			lr |= ((r >> q[i]) & 1) << i;
+		for (size_t lc = 0; lc < Dl; lc++) {
+			size_t c = r & ~mask;
+			for (uint32_t i = 0; i < k; i++)
+				c |= ((lc >> i) & 1) << q[i];
+			full[r * D + c] += scale * loc[lr * Dl + lc];
+		}
+	}
+}
+
+static void pauli_matrix(dw_pauli pp, int n, cplx *M, double scale)
+{
+	size_t D = (size_t)1 << n;
+	static const cplx ipow[4] = {1, I, -1, -I};
+	int ny = __builtin_popcountll(pp.x & pp.z);
+	for (size_t c = 0; c < D; c++) {
+		size_t r = c ^ pp.x;
+		double sg = __builtin_parityll(c & pp.z) ? -1 : 1;
+		M[r * D + c] += scale * sg * ipow[ny % 4];
+	}
+}
+
+static void check_lowering(const char *what, const char *yaml)
+{
+	dw_problem p;
+	dw_error e = {0};
+	if (load(yaml, &p, &e)) {
+		CHECK(0, "%s: %s", what, e.msg);
+		dw_problem_free(&p);
+		return;
+	}
+	bool ind = p.variant == 'I';
+	uint32_t sys0 = ind ? 2 : 1;
+	int ntop = (int)sys0 + p.n;
+	dw_layout lay = {p.variant, 0, ind ? 1 : 0, sys0, (uint32_t)p.n, (uint32_t)ntop};
+	dw_circuit *c = dw_circuit_new();
+	dw_term *terms = NULL;
+	size_t nt = 0;
+	if (dw_stencil_terms(&p, &lay, c, &terms, &nt, &e)) {
+		CHECK(0, "%s: %s", what, e.msg);
+		goto out;
+	}
+	size_t D = (size_t)1 << ntop;
+	cplx *sum = calloc(D * D, sizeof *sum), *want = calloc(D * D, sizeof *want);
+	int ndef = 0, npauli = 0;
+	double worst_exp = 0, worst_leak = 0, worst_herm = 0;
+	for (size_t k = 0; k < nt; k++) {
+		CHECK(terms[k].ca == 0, "%s: ca", what);
+		if (terms[k].pauli) {
+			npauli++;
+			pauli_matrix(terms[k].p, ntop, sum, terms[k].cb);
+			continue;
+		}
+		ndef++;
+		uint32_t id = terms[k].def, na = c->defs[id].nargs;
+		CHECK(na == terms[k].nq && c->defs[id].nparams == 1, "%s: def shape", what);
+		size_t Dl = (size_t)1 << na;
+		cplx *Up = malloc(Dl * Dl * sizeof *Up), *Um = malloc(Dl * Dl * sizeof *Um);
+		cplx *T = malloc(Dl * Dl * sizeof *T), *U1 = malloc(Dl * Dl * sizeof *U1);
+		double h = 1e-5, leak = 0;
+		def_unitary(c, id, h, Up, &leak);
+		def_unitary(c, id, -h, Um, &leak);
+		def_unitary(c, id, 1.3, U1, &leak);
+		for (size_t i = 0; i < Dl * Dl; i++)
+			T[i] = 2 * I * (Up[i] - Um[i]) / (2 * h);
+		for (size_t i = 0; i < Dl; i++)
+			for (size_t j = 0; j < Dl; j++)
+				worst_herm = fmax(worst_herm, cabs(T[i * Dl + j] - conj(T[j * Dl + i])));
+		/* exp(-i 1.3/2 T) from the eigendecomposition of T */
+		cplx *V = malloc(Dl * Dl * sizeof *V);
+		double *w = malloc(Dl * sizeof *w);
+		memcpy(V, T, Dl * Dl * sizeof *V);
+		int info = LAPACKE_zheev(LAPACK_ROW_MAJOR, 'V', 'U', (lapack_int)Dl, V,
+			(lapack_int)Dl, w);
+		CHECK(info == 0, "zheev");
+		double tmax = 0;
+		for (size_t i = 0; i < Dl; i++)
+			tmax = fmax(tmax, fabs(w[i]));
+		CHECK(tmax <= terms[k].norm * (1 + 1e-6) + 1e-9, "%s: ||T|| %.9g > norm %.9g", what,
+			tmax, terms[k].norm);
+		for (size_t i = 0; i < Dl; i++)
+			for (size_t j = 0; j < Dl; j++) {
+				cplx s = 0;
+				for (size_t l = 0; l < Dl; l++)
+					s += V[i * Dl + l] * cexp(-I * 1.3 / 2 * w[l]) * conj(V[j * Dl + l]);
+				worst_exp = fmax(worst_exp, cabs(s - U1[i * Dl + j]));
+			}
+		worst_leak = fmax(worst_leak, leak);
+		embed_add(sum, ntop, T, terms[k].q, terms[k].nq, terms[k].cb);
+		free(Up); free(Um); free(T); free(U1); free(V); free(w);
+	}
+	/* X_anc (x) [X_sgn (x)] A/alpha; the dilation is [[0, A], [A^T, 0]]
+	 * with the block index on the top sys qubit */
+	int64_t N;
+	cplx *A = stencil_dense(&p.stencil, &N);
+	size_t Ns = (size_t)1 << p.n;
+	cplx *As = calloc(Ns * Ns, sizeof *As);
+	for (int64_t r = 0; r < N; r++)
+		for (int64_t cc = 0; cc < N; cc++) {
+			if (p.dilated) {
+				As[(size_t)r * Ns + (size_t)(N + cc)] = A[r * N + cc] / p.alpha;
+				As[(size_t)(N + cc) * Ns + (size_t)r] = conj(A[r * N + cc]) / p.alpha;
+			} else {
+				As[(size_t)r * Ns + (size_t)cc] = A[r * N + cc] / p.alpha;
+			}
+		}
+	for (size_t r = 0; r < D; r++)
+		for (size_t cc = 0; cc < D; cc++) {
+			size_t flip = ind ? 3 : 1;      /* X_anc [X_sgn] */
+			if ((r ^ cc) & ((size_t)(1u << sys0) - 1)) {
+				if (((r ^ cc) & ((1u << sys0) - 1)) == flip)
+					want[r * D + cc] = As[(r >> sys0) * Ns + (cc >> sys0)];
+			}
+		}
+	double err = 0;
+	for (size_t i = 0; i < D * D; i++)
+		err = fmax(err, cabs(sum[i] - want[i]));
+	printf("%s: n %d, variant %c%s, %zu terms (%d Pauli, %d definitions): |sum T - XA/alpha| "
+		"%.2g, |U - exp| %.2g, scratch %.2g\n", what, p.n, p.variant,
+		p.dilated ? ", dilated" : "", nt, npauli, ndef, err, worst_exp, worst_leak);
+	CHECK(err < 1e-7, "%s: sum of terms differs from X (x) A/alpha by %.3g", what, err);
+	CHECK(worst_exp < 1e-7, "%s: U(theta) is not exp(-i theta/2 T) (%.3g)", what, worst_exp);
+	CHECK(worst_herm < 1e-7, "%s: T not Hermitian (%.3g)", what, worst_herm);
+	CHECK(worst_leak < 1e-9, "%s: scratch qubits not back to |0> (%.3g)", what, worst_leak);
+	free(A);
+	free(As);
+	free(sum);
+	free(want);
+out:
+	free(terms);
+	dw_circuit_free(c);
+	dw_problem_free(&p);
+}
+
+static void test_lowering(void)
+{
+	check_lowering("1-D Dirichlet 3-point N=8",
+		"matrix: {stencil: {shape: [8], points: {\"0\": 2, \"-1\": -1, \"+1\": -1}}}\n"
+		"rhs: {uniform: true}\n");
+	check_lowering("1-D periodic 3-point N=8",
+		"matrix: {stencil: {shape: [8], boundary: periodic, points: {\"0\": 2.3, \"-1\": -1, "
+		"\"+1\": -1}}}\nrhs: {uniform: true}\n");
+	check_lowering("1-D Dirichlet offsets 1..4 N=16",
+		"matrix: {stencil: {shape: [16], points: {\"0\": 3, \"1\": -1, \"-1\": -1, "
+		"\"2\": 0.4, \"-2\": 0.4, \"3\": -0.2, \"-3\": -0.2, \"4\": 0.1, \"-4\": 0.1}}}\n"
+		"rhs: {basis: 3}\n");
+	check_lowering("1-D periodic offsets 1..4 N=16",
+		"matrix: {stencil: {shape: [16], boundary: periodic, points: {\"0\": 3, \"1\": -1, "
+		"\"-1\": -1, \"2\": 0.4, \"-2\": 0.4, \"3\": -0.2, \"-3\": -0.2, \"4\": 0.1, "
+		"\"-4\": 0.1}}}\nrhs: {basis: 3}\n");
+	check_lowering("1-D periodic N=4 offsets +-2 (one shift)",
+		"matrix: {stencil: {shape: [4], boundary: periodic, points: {\"0\": 3, \"2\": 0.5, "
+		"\"-2\": 0.5, \"1\": -1, \"-1\": -1}}}\nrhs: {basis: 1}\n");
+	check_lowering("2-D Dirichlet 5-point 4x4",
+		"matrix: {stencil: {shape: [4, 4], points: {\"0,0\": 4, \"-1,0\": -1, \"+1,0\": -1, "
+		"\"0,-1\": -1, \"0,+1\": -1}}}\nrhs: {uniform: true}\n");
+	check_lowering("2-D 9-point 4x4 Dirichlet",
+		"matrix: {stencil: {shape: [4, 4], points: {\"0,0\": 5, \"-1,0\": -1, \"+1,0\": -1, "
+		"\"0,-1\": -1, \"0,+1\": -1, \"1,1\": -0.25, \"-1,-1\": -0.25, \"1,-1\": -0.5, "
+		"\"-1,1\": -0.5}}}\nrhs: {uniform: true}\n");
+	check_lowering("2-D 9-point 4x8 periodic x, Dirichlet y",
+		"matrix: {stencil: {shape: [4, 8], boundary: [periodic, dirichlet], points: {\"0,0\": 5, "
+		"\"-1,0\": -1, \"+1,0\": -1, \"0,-1\": -1, \"0,+1\": -1, \"1,1\": -0.25, "
+		"\"-1,-1\": -0.25, \"1,-1\": -0.5, \"-1,1\": -0.5}}}\nrhs: {uniform: true}\n");
+	check_lowering("2-D offsets (3,2) and (-1,4) 8x8 Dirichlet",
+		"matrix: {stencil: {shape: [8, 8], points: {\"0,0\": 5, \"3,2\": -0.3, \"-3,-2\": -0.3, "
+		"\"-1,4\": 0.2, \"1,-4\": 0.2}}}\nrhs: {uniform: true}\n");
+	check_lowering("3-D 7-point 2x4x2 mixed",
+		"matrix: {stencil: {shape: [2, 4, 2], boundary: [dirichlet, periodic, dirichlet], "
+		"points: {\"0,0,0\": 6.5, \"1,0,0\": -1, \"-1,0,0\": -1, \"0,1,0\": -1, \"0,-1,0\": -1, "
+		"\"0,0,1\": -1, \"0,0,-1\": -1}}}\nrhs: {uniform: true}\n");
+	check_lowering("3-D corner offsets 2x2x4 Dirichlet",
+		"matrix: {stencil: {shape: [2, 2, 4], points: {\"0,0,0\": 4, \"1,1,1\": -0.5, "
+		"\"-1,-1,-1\": -0.5, \"1,-1,2\": 0.3, \"-1,1,-2\": 0.3}}}\nrhs: {uniform: true}\n");
+	check_lowering("1-D non-symmetric Dirichlet (dilated)",
+		"matrix: {stencil: {shape: [8], points: {\"0\": 2.2, \"-1\": -1.5, \"+1\": -0.5, "
+		"\"+3\": 0.2}}}\nrhs: {basis: 2}\n");
+	check_lowering("2-D non-symmetric periodic 4x2 (dilated)",
+		"matrix: {stencil: {shape: [4, 2], boundary: periodic, points: {\"0,0\": 3, "
+		"\"-1,0\": -1.5, \"1,1\": -0.5}}}\nrhs: {uniform: true}\n");
+	check_lowering("1-D indefinite Dirichlet N=8 (variant I)",
+		"matrix: {stencil: {shape: [8], points: {\"0\": 0.5, \"-1\": -1, \"+1\": -1}}}\n"
+		"rhs: {uniform: true}\n");
+}
+
+int main(void)
+{
+	snprintf(tmpdir, sizeof tmpdir, "/tmp/dwell-stencil-XXXXXX");
+	if (!mkdtemp(tmpdir)) {
+		perror("mkdtemp");
+		return 1;
+	}
+	test_arith();
+	test_spectra();
+	test_lowering();
+	rmdir(tmpdir);
+	return check_done();
+}
