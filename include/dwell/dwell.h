@@ -10,6 +10,7 @@
 #include "dwell/mtx.h"
 #include "dwell/circuit.h"
 #include "dwell/program.h"
+#include "dwell/sparse.h"
 #include "dwell/stencil.h"
 #include "dwell/formula.h"
 #include "dwell/emit.h"
