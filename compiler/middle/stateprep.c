@@ -14,6 +14,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "dwell/prep_circuit.h"
 #include "dwell/program.h"
 
 static uint32_t gray(uint32_t i) { return i ^ (i >> 1); }
@@ -150,8 +151,9 @@ uint32_t dw_stateprep_def(dw_circuit *c, const dw_problem *p, dw_error *e)
 		}
 		return dw_end(b, e);
 	case DW_RHS_CIRCUIT:
+		return dw_stateprep_circuit(c, p, e);   /* prep_circuit.c */
 	default:
-		dw_fail(e, DW_EINPUT, "%s: rhs.circuit is not supported yet", p->path);
+		dw_fail(e, DW_EINTERNAL, "internal: unknown rhs kind");
 		return DW_NO_DEF;
 	}
 }

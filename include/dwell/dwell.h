@@ -12,6 +12,7 @@
 #include "dwell/program.h"
 #include "dwell/sparse.h"
 #include "dwell/stencil.h"
+#include "dwell/prep_circuit.h"
 #include "dwell/formula.h"
 #include "dwell/emit.h"
 #include "dwell/qasm.h"

@@ -21,6 +21,20 @@ typedef double complex cplx;
 static void rhs_vector(const dw_problem *p, cplx *b)
 {
 	size_t N = (size_t)1 << p->n;
+	if (p->rhs_kind == DW_RHS_CIRCUIT) {
+		/* the user circuit run by the runtime simulator, on the low qubits */
+		dw_qasm_program *prog = NULL;
+		dw_state *st = NULL;
+		dw_error e = {0};
+		memset(b, 0, N * sizeof *b);
+		CHECK(dw_qasm_parse_file(p->rhs_file, &prog, &e) == 0
+			&& dw_sim_run(prog, NULL, 1, &st, &e) == 0, "%s", e.msg);
+		for (uint64_t i = 0; st && i < st->dim && i < N; i++)
+			b[i] = st->amp[i];
+		dw_state_free(st);
+		dw_qasm_free(prog);
+		return;
+	}
 	for (size_t i = 0; i < N; i++) {
 		switch (p->rhs_kind) {
 		case DW_RHS_BASIS:
@@ -41,6 +55,39 @@ static void rhs_vector(const dw_problem *p, cplx *b)
 			b[i] = p->amps[i];
 		}
 	}
+}
+
+/* Dense column-major A of a stencil, built here from the DESIGN 3.3
+ * convention: index j = x0 + N0 x1 + N0 N1 x2, A[j][j+o] += c, Dirichlet
+ * drops neighbours outside the grid, periodic wraps them. */
+static cplx *stencil_matrix(const dw_stencil *st, size_t *dout)
+{
+	int64_t n[3] = {st->shape[0], st->dims > 1 ? st->shape[1] : 1,
+		st->dims > 2 ? st->shape[2] : 1};
+	size_t d = (size_t)(n[0] * n[1] * n[2]);
+	cplx *A = calloc(d * d, sizeof *A);
+	for (int64_t j = 0; j < (int64_t)d; j++) {
+		int64_t x[3] = {j % n[0], (j / n[0]) % n[1], j / (n[0] * n[1])};
+		for (size_t k = 0; k < st->npoints; k++) {
+			int64_t col = 0, stride = 1;
+			bool in = true;
+			for (int a = 0; a < 3; a++) {
+				int64_t y = x[a] + (a < st->dims ? st->offset[k][a] : 0);
+				if (y < 0 || y >= n[a]) {
+					if (st->periodic[a])
+						y = (y % n[a] + n[a]) % n[a];
+					else
+						in = false;
+				}
+				col += y * stride;
+				stride *= n[a];
+			}
+			if (in)
+				A[(size_t)j + (size_t)col * d] += st->coeff[k];
+		}
+	}
+	*dout = d;
+	return A;
 }
 
 /* The exact normalised solution in the analysed space (2^n entries), by
@@ -67,6 +114,10 @@ static int exact_solution(const dw_problem *p, cplx *xfull, dw_error *e)
 			for (int64_t k = m->rowptr[r]; k < m->rowptr[r + 1]; k++)
 				A[(size_t)r + (size_t)m->col[k] * d] += m->val[k];
 		dw_csr_free(m);
+		if (p->dilated)
+			off = N / 2;
+	} else if (p->matrix_kind == DW_MATRIX_STENCIL) {
+		A = stencil_matrix(&p->stencil, &d);
 		if (p->dilated)
 			off = N / 2;
 	} else {

@@ -510,6 +510,80 @@ static void test_lowering(void)
 		"rhs: {uniform: true}\n");
 }
 
+/* rhs.circuit: U_b |00> against the state worked out by hand for
+ * ry(2 pi/3) q0; cx q0, q1; h q1 (gate matrices of the OpenQASM 3
+ * stdgates.inc, common practice): (0.5/sqrt2)(|0> + |2>) +
+ * (sin(pi/3)/sqrt2)(|1> - |3>), index = q0 + 2 q1. */
+static void test_prep_circuit(void)
+{
+	char qasm[128], yaml[128];
+	snprintf(qasm, sizeof qasm, "%s/b.qasm", tmpdir);
+	snprintf(yaml, sizeof yaml, "%s/c.yaml", tmpdir);
+	FILE *f = fopen(qasm, "w");
+	fputs("OPENQASM 3.0;\ninclude \"stdgates.inc\";\nqubit[2] q;\n"
+		"ry(2*pi/3) q[0];\ncx q[0], q[1];\nh q[1];\n", f);
+	fclose(f);
+	static const char *const stencils[2] = {
+		"{shape: [4], boundary: periodic, points: {\"0\": 4, \"-1\": -1, \"+1\": -1}}",
+		"{shape: [4], points: {\"0\": 3, \"-1\": -1, \"+1\": -0.5}}",   /* dilated */
+	};
+	double r2 = sqrt(2.0), s3 = sin(M_PI / 3);
+	cplx want[4] = {0.5 / r2, s3 / r2, 0.5 / r2, -s3 / r2};
+	for (int i = 0; i < 2; i++) {
+		f = fopen(yaml, "w");
+		fprintf(f, "matrix: {stencil: %s}\nrhs: {circuit: b.qasm}\n", stencils[i]);
+		fclose(f);
+		dw_problem p;
+		dw_error e = {0};
+		if (dw_problem_load(yaml, NULL, 0, &p, &e) || dw_problem_analyse(&p, &e)) {
+			CHECK(0, "%s", e.msg);
+			dw_problem_free(&p);
+			continue;
+		}
+		dw_circuit *c = dw_circuit_new();
+		uint32_t id = dw_stateprep_def(c, &p, &e);
+		CHECK(id != DW_NO_DEF, "%s", e.msg);
+		if (id != DW_NO_DEF) {
+			uint32_t nq = dw_def_qubits(c, id), map[64];
+			for (uint32_t q = 0; q < nq; q++)
+				map[q] = q;
+			irsim s;
+			irsim_init(&s, (int)nq);
+			irsim_apply(&s, c, id, map, NULL);
+			/* up to a global phase: overlap modulus 1 */
+			cplx ov = 0;
+			double rest = 0;
+			for (size_t k = 0; k < s.dim; k++) {
+				if (k < 4)
+					ov += conj(want[k]) * s.psi[k];
+				else
+					rest += creal(s.psi[k] * conj(s.psi[k]));
+			}
+			CHECK(fabs(cabs(ov) - 1) < 1e-12 && rest < 1e-24, "rhs.circuit state: overlap "
+				"%.15g, weight outside %.3g (dilated %d)", cabs(ov), rest, p.dilated);
+			free(s.psi);
+		}
+		dw_circuit_free(c);
+		dw_problem_free(&p);
+	}
+	/* wrong qubit count: a located refusal */
+	f = fopen(yaml, "w");
+	fputs("matrix: {stencil: {shape: [8], points: {\"0\": 3, \"-1\": -1, \"+1\": -1}}}\n"
+		"rhs: {circuit: b.qasm}\n", f);
+	fclose(f);
+	dw_problem p;
+	dw_error e = {0};
+	CHECK(dw_problem_load(yaml, NULL, 0, &p, &e) == 0 && dw_problem_analyse(&p, &e) == 0,
+		"%s", e.msg);
+	dw_circuit *c = dw_circuit_new();
+	CHECK(dw_stateprep_def(c, &p, &e) == DW_NO_DEF && e.status == DW_EINPUT
+		&& strstr(e.msg, "declares 2 qubits; the system register has 3"), "%s", e.msg);
+	dw_circuit_free(c);
+	dw_problem_free(&p);
+	remove(qasm);
+	remove(yaml);
+}
+
 int main(void)
 {
 	snprintf(tmpdir, sizeof tmpdir, "/tmp/dwell-stencil-XXXXXX");
@@ -520,6 +594,7 @@ int main(void)
 	test_arith();
 	test_spectra();
 	test_lowering();
+	test_prep_circuit();
 	rmdir(tmpdir);
 	return check_done();
 }
