@@ -6,12 +6,13 @@
  * Layout: for n >= 1 the vector is two halves of M = 2^(n-1) amplitudes,
  * lo_ (top qubit 0) and hi_ (top qubit 1), with hi_ = lo_ + M + GAP while
  * simulating.  Every kernel walks "pairs": for k in [0, nk) it forms an
- * index i by inserting zero bits, and updates p0[i], p1[i].  A gate on
- * qubit t below the top uses p0 = half, p1 = half + 2^t within each half;
- * a gate on the top qubit uses p0 = lo_, p1 = hi_.  A control on the top
- * qubit selects halves.  Complex products are written out in real
- * arithmetic so that the loops do not call the C library's NaN-checking
- * complex multiply. */
+ * index i by inserting zero bits at the target's and the controls'
+ * positions and setting the control bits, and updates p0[i], p1[i]; so a
+ * gate with c controls touches 2^-c of the state.  A gate on qubit t
+ * below the top uses p0 = half, p1 = half + 2^t within each half; a gate
+ * on the top qubit uses p0 = lo_, p1 = hi_.  A control on the top qubit
+ * selects halves.  Complex products keep (re, im) in one SSE2 register
+ * and never call the C library's NaN-checking complex multiply. */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -49,20 +50,61 @@ static inline uint64_t ins0(uint64_t k, int t)
 	return ((k & ~low) << 1) | (k & low);
 }
 
-/* ---- kernels over a range [k0, k1) of their loop ---- */
+/* ---- kernels over a range [k0, k1) of their loop ----
+ *
+ * A kernel walks the indices i that have zeros at the bit positions pos[]
+ * (the target's bit, a swap's two bits, the control bits) and the control
+ * values `set`: i = k with zeros inserted at pos[0] < pos[1] < ..., OR set,
+ * for k in [0, M >> npos).  So a gate with c controls touches only the
+ * 2^-c of the state it acts on. */
 
 typedef struct kargs {
 	double complex *p0, *p1;
-	int t, t2;                /* bit positions where zeros are inserted */
-	uint64_t cmask, cval;     /* condition on the index */
+	int npos;
+	int pos[64];              /* ascending */
+	uint64_t set;             /* control bits that must be 1 */
 	double complex m[4];      /* matrix, or phase in m[0] */
-	uint64_t run;             /* k_phase: length of a run */
+	uint64_t zmask;           /* the bits at pos[] */
 } kargs;
+
+/* Loop i over the indices of a's pattern for k in [k0, k1); BODY uses i.
+ * After the first index, the next one with zeros at zmask is
+ * ((j | zmask) + 1) & ~zmask: three operations, whatever the count. */
+#define FOR_INDICES(a, k0, k1, ...) do { \
+	const uint64_t set_ = (a)->set, z_ = (a)->zmask; \
+	if ((a)->npos == 0) { \
+		for (int64_t k_ = (k0); k_ < (k1); k_++) { \
+			const uint64_t i = (uint64_t)k_ | set_; \
+			__VA_ARGS__ \
+		} \
+	} else { \
+		uint64_t j_ = (uint64_t)(k0); \
+		for (int b_ = 0; b_ < (a)->npos; b_++) \
+			j_ = ins0(j_, (a)->pos[b_]); \
+		for (int64_t k_ = (k0); k_ < (k1); k_++) { \
+			const uint64_t i = j_ | set_; \
+			__VA_ARGS__ \
+			j_ = ((j_ | z_) + 1) & ~z_; \
+		} \
+	} \
+} while (0)
+
+/* Fill a's positions from the bits of zmask; gives M >> npos. */
+static int64_t pattern(kargs *a, uint64_t zmask, uint64_t set, uint64_t m)
+{
+	a->npos = 0;
+	for (int b = 0; b < 64; b++)
+		if ((zmask >> b) & 1)
+			a->pos[a->npos++] = b;
+	a->set = set;
+	a->zmask = zmask;
+	return (int64_t)(m >> a->npos);
+}
 
 typedef double (*range_fn)(const kargs *a, int64_t k0, int64_t k1);
 
 /* Run fn over [0, n): in one call, or split in contiguous chunks over the
- * OpenMP threads when the call spans at least omp_min amplitudes.  The
+ * OpenMP threads when the call touches at least omp_min amplitudes.  The
  * chunks' return values are added in chunk order. */
 static double run_range(range_fn fn, const kargs *a, int64_t n, int64_t work)
 {
@@ -128,21 +170,14 @@ static inline void vsplit(double complex m, v2d *re, v2d *im)
 static double r_dense(const kargs *a, int64_t k0, int64_t k1)
 {
 	v2d re[4], im[4];
-	for (int j = 0; j < 4; j++) {
-		re[j] = (v2d){creal(a->m[j]), creal(a->m[j])};
-		im[j] = (v2d){-cimag(a->m[j]), cimag(a->m[j])};
-	}
+	for (int j = 0; j < 4; j++)
+		vsplit(a->m[j], &re[j], &im[j]);
 	double complex *p0 = a->p0, *p1 = a->p1;
-	const uint64_t cmask = a->cmask, cval = a->cval;
-	const int t = a->t;
-	for (int64_t k = k0; k < k1; k++) {
-		uint64_t i = ins0((uint64_t)k, t);
-		if ((i & cmask) != cval)
-			continue;
+	FOR_INDICES(a, k0, k1, {
 		v2d x = vload(p0 + i), y = vload(p1 + i), sx = vswap(x), sy = vswap(y);
 		vstore(p0 + i, re[0] * x + im[0] * sx + re[1] * y + im[1] * sy);
 		vstore(p1 + i, re[2] * x + im[2] * sx + re[3] * y + im[3] * sy);
-	}
+	});
 	return 0;
 }
 
@@ -152,88 +187,59 @@ static double r_diag(const kargs *a, int64_t k0, int64_t k1)
 	vsplit(a->m[0], &r0, &i0);
 	vsplit(a->m[3], &r1, &i1);
 	double complex *p0 = a->p0, *p1 = a->p1;
-	const uint64_t cmask = a->cmask, cval = a->cval;
-	const int t = a->t;
-	const int one0 = a->m[0] == 1;
-	for (int64_t k = k0; k < k1; k++) {
-		uint64_t i = ins0((uint64_t)k, t);
-		if ((i & cmask) != cval)
-			continue;
-		if (!one0)
-			vstore(p0 + i, vmul(r0, i0, vload(p0 + i)));
+	FOR_INDICES(a, k0, k1, {
+		vstore(p0 + i, vmul(r0, i0, vload(p0 + i)));
 		vstore(p1 + i, vmul(r1, i1, vload(p1 + i)));
-	}
+	});
 	return 0;
 }
 
-/* Anti-diagonal: p0 <- m01 p1, p1 <- m10 p0; a plain exchange for X. */
+/* Anti-diagonal: p0 <- m01 p1, p1 <- m10 p0. */
 static double r_anti(const kargs *a, int64_t k0, int64_t k1)
 {
-	const double complex m01 = a->m[1], m10 = a->m[2];
+	v2d r1, i1, r2, i2;
+	vsplit(a->m[1], &r1, &i1);
+	vsplit(a->m[2], &r2, &i2);
 	double complex *p0 = a->p0, *p1 = a->p1;
-	const uint64_t cmask = a->cmask, cval = a->cval;
-	const int t = a->t;
-	if (m01 == 1 && m10 == 1) {
-		for (int64_t k = k0; k < k1; k++) {
-			uint64_t i = ins0((uint64_t)k, t);
-			if ((i & cmask) != cval)
-				continue;
-			double complex x = p0[i];
-			p0[i] = p1[i];
-			p1[i] = x;
-		}
-		return 0;
-	}
-	for (int64_t k = k0; k < k1; k++) {
-		uint64_t i = ins0((uint64_t)k, t);
-		if ((i & cmask) != cval)
-			continue;
-		double complex x = p0[i];
-		p0[i] = cmul(m01, p1[i]);
-		p1[i] = cmul(m10, x);
-	}
+	FOR_INDICES(a, k0, k1, {
+		v2d x = vload(p0 + i), y = vload(p1 + i);
+		vstore(p0 + i, vmul(r1, i1, y));
+		vstore(p1 + i, vmul(r2, i2, x));
+	});
 	return 0;
 }
 
-/* Exchange p0[i] and p1[i], i = k with zeros inserted at t < t2. */
+/* Exchange p0[i] and p1[i] (X, swap). */
 static double r_swap(const kargs *a, int64_t k0, int64_t k1)
 {
 	double complex *p0 = a->p0, *p1 = a->p1;
-	const uint64_t cmask = a->cmask, cval = a->cval;
-	for (int64_t k = k0; k < k1; k++) {
-		uint64_t i = ins0(ins0((uint64_t)k, a->t), a->t2);
-		if ((i & cmask) != cval)
-			continue;
+	FOR_INDICES(a, k0, k1, {
 		double complex x = p0[i];
 		p0[i] = p1[i];
 		p1[i] = x;
-	}
+	});
 	return 0;
 }
 
-/* Multiply by m[0] the runs r (of a->run amplitudes) whose start b
- * satisfies (b & cmask) == cval. */
+/* p0[i] *= m[0] */
 static double r_phase(const kargs *a, int64_t k0, int64_t k1)
 {
 	v2d re, im;
 	vsplit(a->m[0], &re, &im);
 	double complex *p = a->p0;
-	const uint64_t run = a->run, cmask = a->cmask, cval = a->cval;
-	for (int64_t r = k0; r < k1; r++) {
-		uint64_t b = (uint64_t)r * run;
-		if ((b & cmask) != cval)
-			continue;
-		for (uint64_t j = 0; j < run; j++)
-			vstore(p + b + j, vmul(re, im, vload(p + b + j)));
-	}
+	FOR_INDICES(a, k0, k1, {
+		vstore(p + i, vmul(re, im, vload(p + i)));
+	});
 	return 0;
 }
 
 static double r_sum1(const kargs *a, int64_t k0, int64_t k1)
 {
 	double s = 0;
-	for (int64_t k = k0; k < k1; k++)
-		s += norm2(a->p1[ins0((uint64_t)k, a->t)]);
+	const double complex *p1 = a->p1;
+	FOR_INDICES(a, k0, k1, {
+		s += norm2(p1[i]);
+	});
 	return s;
 }
 
@@ -245,51 +251,56 @@ static double r_norm(const kargs *a, int64_t k0, int64_t k1)
 	return s;
 }
 
-/* ---- pair kernels: nk pairs (p0[i], p1[i]), i = k with a zero at t ---- */
+/* ---- pair kernels: pairs (p0[i], p1[i]) over the pattern (zmask, set)
+ * of an index space of m amplitudes ---- */
 
-static void k_dense(double complex *p0, double complex *p1, uint64_t nk, int t,
-	uint64_t cmask, uint64_t cval, const double complex m[4])
+static void k_dense(double complex *p0, double complex *p1, uint64_t m, uint64_t zmask,
+	uint64_t set, const double complex mat[4])
 {
-	kargs a = {p0, p1, t, 0, cmask, cval, {m[0], m[1], m[2], m[3]}, 0};
-	run_range(r_dense, &a, (int64_t)nk, 2 * (int64_t)nk);
+	kargs a = {p0, p1, 0, {0}, 0, {mat[0], mat[1], mat[2], mat[3]}, 0};
+	int64_t n = pattern(&a, zmask, set, m);
+	run_range(r_dense, &a, n, 2 * n);
 }
 
-static void k_diag(double complex *p0, double complex *p1, uint64_t nk, int t,
-	uint64_t cmask, uint64_t cval, double complex d0, double complex d1)
+static void k_diag(double complex *p0, double complex *p1, uint64_t m, uint64_t zmask,
+	uint64_t set, double complex d0, double complex d1)
 {
-	kargs a = {p0, p1, t, 0, cmask, cval, {d0, 0, 0, d1}, 0};
-	run_range(r_diag, &a, (int64_t)nk, 2 * (int64_t)nk);
+	kargs a = {p0, p1, 0, {0}, 0, {d0, 0, 0, d1}, 0};
+	int64_t n = pattern(&a, zmask, set, m);
+	run_range(r_diag, &a, n, 2 * n);
 }
 
-static void k_anti(double complex *p0, double complex *p1, uint64_t nk, int t,
-	uint64_t cmask, uint64_t cval, double complex m01, double complex m10)
+/* Anti-diagonal; a plain exchange for X. */
+static void k_anti(double complex *p0, double complex *p1, uint64_t m, uint64_t zmask,
+	uint64_t set, double complex m01, double complex m10)
 {
-	kargs a = {p0, p1, t, 0, cmask, cval, {0, m01, m10, 0}, 0};
-	run_range(r_anti, &a, (int64_t)nk, 2 * (int64_t)nk);
+	kargs a = {p0, p1, 0, {0}, 0, {0, m01, m10, 0}, 0};
+	int64_t n = pattern(&a, zmask, set, m);
+	run_range(m01 == 1 && m10 == 1 ? r_swap : r_anti, &a, n, 2 * n);
 }
 
-static void k_swap(double complex *p0, double complex *p1, uint64_t nk, int t1, int t2,
-	uint64_t cmask, uint64_t cval)
+static void k_swap(double complex *p0, double complex *p1, uint64_t m, uint64_t zmask,
+	uint64_t set)
 {
-	kargs a = {p0, p1, t1, t2, cmask, cval, {0, 0, 0, 0}, 0};
-	run_range(r_swap, &a, (int64_t)nk, 4 * (int64_t)nk);
+	kargs a = {p0, p1, 0, {0}, 0, {0, 0, 0, 0}, 0};
+	int64_t n = pattern(&a, zmask, set, m);
+	run_range(r_swap, &a, n, 2 * n);
 }
 
-/* Multiply p[i] by ph where (i & mask) == val, i < m, over runs of
- * 2^ctz(mask) amplitudes. */
+/* p[i] *= ph where (i & mask) == val, i < m. */
 static void k_phase(double complex *p, uint64_t m, uint64_t mask, uint64_t val, double complex ph)
 {
-	uint64_t run = mask ? (uint64_t)1 << __builtin_ctzll(mask) : m;
-	if (run > m)
-		run = m;
-	kargs a = {p, NULL, 0, 0, mask, val, {ph, 0, 0, 0}, run};
-	run_range(r_phase, &a, (int64_t)(m / run), (int64_t)m);
+	kargs a = {p, NULL, 0, {0}, 0, {ph, 0, 0, 0}, 0};
+	int64_t n = pattern(&a, mask, val, m);
+	run_range(r_phase, &a, n, n);
 }
 
-static double k_sum1(const double complex *p1, uint64_t nk, int t)
+/* Sum of |p1[i]|^2 over the pattern. */
+static double k_sum1(const double complex *p1, uint64_t m, uint64_t zmask)
 {
-	kargs a = {NULL, (double complex *)p1, t, 0, 0, 0, {0, 0, 0, 0}, 0};
-	return run_range(r_sum1, &a, (int64_t)nk, 2 * (int64_t)nk);
+	kargs a = {NULL, (double complex *)p1, 0, {0}, 0, {0, 0, 0, 0}, 0};
+	int64_t n = pattern(&a, zmask, 0, m);
+	return run_range(r_sum1, &a, n, 2 * n);
 }
 
 /* ---- state ---- */
@@ -439,7 +450,7 @@ double dw_state_norm2(const dw_state *st)
 	if (st->nqubits == 0)
 		return norm2(st->lo_[0]);
 	uint64_t m = st->dim >> 1;
-	kargs a = {st->lo_, st->hi_, 0, 0, 0, 0, {0, 0, 0, 0}, 0};
+	kargs a = {st->lo_, st->hi_, 0, {0}, 0, {0, 0, 0, 0}, 0};
 	return run_range(r_norm, &a, (int64_t)m, 2 * (int64_t)m);
 }
 
@@ -472,20 +483,22 @@ void dw_state_apply_1q(dw_state *st, int t, const double complex m[4],
 			if (m[3] != 1)
 				k_phase(st->hi_, half_n, cmask, cval, m[3]);
 		} else if (anti) {
-			k_anti(st->lo_, st->hi_, half_n, top, cmask, cval, m[1], m[2]);
+			k_anti(st->lo_, st->hi_, half_n, cmask, cval, m[1], m[2]);
 		} else {
-			k_dense(st->lo_, st->hi_, half_n, top, cmask, cval, m);
+			k_dense(st->lo_, st->hi_, half_n, cmask, cval, m);
 		}
 		return;
 	}
 	uint64_t tb = (uint64_t)1 << t;
 	FOR_HALVES(st, cmask, cval, a, lm, lv, {
-		if (diag)
-			k_diag(a, a + tb, half_n >> 1, t, lm, lv, m[0], m[3]);
+		if (diag && m[0] == 1)
+			k_phase(a, half_n, lm | tb, lv | tb, m[3]);
+		else if (diag)
+			k_diag(a, a + tb, half_n, lm | tb, lv, m[0], m[3]);
 		else if (anti)
-			k_anti(a, a + tb, half_n >> 1, t, lm, lv, m[1], m[2]);
+			k_anti(a, a + tb, half_n, lm | tb, lv, m[1], m[2]);
 		else
-			k_dense(a, a + tb, half_n >> 1, t, lm, lv, m);
+			k_dense(a, a + tb, half_n, lm | tb, lv, m);
 	});
 }
 
@@ -514,10 +527,10 @@ void dw_state_apply_swap(dw_state *st, int a, int b, uint64_t cmask, uint64_t cv
 	uint64_t half_n = st->dim >> 1, ab = (uint64_t)1 << a, bb = (uint64_t)1 << b;
 	if (b == top) {
 		/* |top=0, a=1> <-> |top=1, a=0> */
-		k_swap(st->lo_ + ab, st->hi_, half_n >> 1, a, top, cmask, cval);
+		k_swap(st->lo_ + ab, st->hi_, half_n, cmask | ab, cval);
 		return;
 	}
-	FOR_HALVES(st, cmask, cval, h, lm, lv, k_swap(h + ab, h + bb, half_n >> 2, a, b, lm, lv));
+	FOR_HALVES(st, cmask, cval, h, lm, lv, k_swap(h + ab, h + bb, half_n, lm | ab | bb, lv));
 }
 
 double dw_state_prob1(const dw_state *st, int q)
@@ -525,9 +538,9 @@ double dw_state_prob1(const dw_state *st, int q)
 	int top = st->nqubits - 1;
 	uint64_t half_n = st->dim >> 1;
 	if (q == top)
-		return k_sum1(st->hi_, half_n, top);
+		return k_sum1(st->hi_, half_n, 0);
 	uint64_t qb = (uint64_t)1 << q;
-	return k_sum1(st->lo_ + qb, half_n >> 1, q) + k_sum1(st->hi_ + qb, half_n >> 1, q);
+	return k_sum1(st->lo_ + qb, half_n, qb) + k_sum1(st->hi_ + qb, half_n, qb);
 }
 
 int dw_state_measure(dw_state *st, int q)
