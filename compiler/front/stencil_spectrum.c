@@ -247,6 +247,18 @@ static double min_abs_lists(axis_op *ax, int dims, int from, double t)
 	return best;
 }
 
+/* The sorted deviations of an axis (1, or -status on failure). */
+static int axis_list(axis_op *x, dw_error *e)
+{
+	x->list = dw_alloc(e, (size_t)x->N, sizeof *x->list);
+	if (!x->list)
+		return -(e->status ? e->status : DW_EINTERNAL);
+	for (int64_t k = 0; k < x->N; k++)
+		x->list[k] = axis_dev(x, x->periodic ? k : k + 1);
+	qsort(x->list, (size_t)x->N, sizeof *x->list, cmp_double);
+	return 1;
+}
+
 /* 1: handled (out filled); 0: not separable in closed form; <0 error */
 static int analyse_separable(const dw_stencil *st, const dw_stencil_class *cls,
 	size_t ncls, bool herm, dw_stencil_spectrum *out, dw_error *e)
@@ -339,23 +351,17 @@ static int analyse_separable(const dw_stencil *st, const dw_stencil_class *cls,
 		axis_op *x = &ax[a];
 		if (!x->active)
 			continue;
-		if (x->N <= AXIS_LIST_MAX) {
-			x->list = dw_alloc(e, (size_t)x->N, sizeof *x->list);
-			if (!x->list) {
-				rc = -(e->status ? e->status : DW_EINTERNAL);
-				break;
-			}
-			for (int64_t k = 0; k < x->N; k++)
-				x->list[k] = axis_dev(x, x->periodic ? k : k + 1);
-			qsort(x->list, (size_t)x->N, sizeof *x->list, cmp_double);
-			x->vmin = x->list[0];
-			x->vmax = x->list[x->N - 1];
-		} else if (x->three_point) {
+		if (x->three_point) {
 			/* extremes at k = 1, N (Dirichlet) or k = 0, N/2 (periodic) */
 			double d1 = axis_dev(x, x->periodic ? 0 : 1);
 			double d2 = axis_dev(x, x->periodic ? x->N / 2 : x->N);
 			x->vmin = fmin(d1, d2);
 			x->vmax = fmax(d1, d2);
+		} else if (x->N <= AXIS_LIST_MAX) {
+			if ((rc = axis_list(x, e)) != 1)
+				break;
+			x->vmin = x->list[0];
+			x->vmax = x->list[x->N - 1];
 		} else {
 			rc = 0;   /* wide periodic stencil on a huge axis */
 			break;
@@ -372,25 +378,29 @@ static int analyse_separable(const dw_stencil *st, const dw_stencil_class *cls,
 		} else if (lmax < 0) {
 			out->sigma_min = -lmax;
 		} else {
+			/* indefinite: the smallest |c0 + sum_a dev_a| */
 			int nact = 0, single = -1;
-			bool lists = true;
 			int64_t others = 1, last = 1;   /* the last active axis is searched */
 			for (int a = 0; a < st->dims; a++)
 				if (ax[a].active) {
 					nact++;
 					single = a;
-					lists = lists && ax[a].list;
 					others *= last;
 					last = ax[a].N;
 				}
-			if (nact <= 1 && single >= 0 && !ax[single].list)
-				out->sigma_min = three_point_min_abs(&ax[single], c0);
-			else if (nact == 0)
+			if (nact == 0) {
 				out->sigma_min = fabs(c0);
-			else if (lists && others <= SEARCH_MAX)
-				out->sigma_min = min_abs_lists(ax, st->dims, 0, c0);
-			else
+			} else if (nact == 1 && ax[single].three_point) {
+				out->sigma_min = three_point_min_abs(&ax[single], c0);
+			} else if (others <= SEARCH_MAX) {
+				for (int a = 0; a < st->dims && rc == 1; a++)
+					if (ax[a].active && !ax[a].list)
+						rc = ax[a].N <= AXIS_LIST_MAX ? axis_list(&ax[a], e) : 0;
+				if (rc == 1)
+					out->sigma_min = min_abs_lists(ax, st->dims, 0, c0);
+			} else {
 				rc = 0;
+			}
 		}
 	}
 	for (int a = 0; a < 3; a++)

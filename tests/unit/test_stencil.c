@@ -199,6 +199,21 @@ static void test_spectra(void)
 		CHECK(p.n == (i ? 30 : 5), "n %d", p.n);
 		dw_problem_free(&p);
 	}
+	/* indefinite 1-D beyond the per-axis lists (2^25 points: nearest-root
+	 * search) against a brute-force scan of the sine-mode eigenvalues
+	 * 0.7 - 2 cos(k pi/(N+1)), k = 1..N (METHODS 11.1) */
+	CHECK(load("matrix: {stencil: {shape: [33554432], points: {\"0\": 0.7, \"-1\": -1, "
+		"\"+1\": -1}}}\nrhs: {uniform: true}\n", &p, &e) == 0, "%s", e.msg);
+	{
+		double N = 33554432.0, smin = INFINITY;
+		for (long k = 1; k <= 33554432L; k++)
+			smin = fmin(smin, fabs(0.7 - 2 * cos((double)k * M_PI / (N + 1))));
+		CHECK(fabs(p.sigma_min / smin - 1) < 1e-6, "2^25 indefinite sigma_min %.12g vs "
+			"scan %.12g", p.sigma_min, smin);
+		CHECK(p.variant == 'I' && fabs(p.lambda_min - (0.7 - 2 * cos(M_PI / (N + 1)))) < 1e-12,
+			"2^25 indefinite lambda_min %.15g", p.lambda_min);
+	}
+	dw_problem_free(&p);
 	/* periodic circulant: 2.5 - 2 cos(2 pi k/N) in [0.5, 4.5] (common practice) */
 	CHECK(load("matrix: {stencil: {shape: [16], boundary: periodic, points: {\"0\": 2.5, "
 		"\"-1\": -1, \"+1\": -1}}}\nrhs: {uniform: true}\n", &p, &e) == 0, "%s", e.msg);
