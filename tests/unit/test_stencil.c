@@ -581,6 +581,59 @@ static void test_prep_circuit(void)
 		dw_circuit_free(c);
 		dw_problem_free(&p);
 	}
+	/* the gate-level translation against the runtime's simulator (exact
+	 * OpenQASM 3 phases; equal up to a global phase): gate definitions with
+	 * parameters, inv, pow, ctrl, negctrl, ctrl(2), for loops, U, sx, gphase */
+	static const char *const prog3 =
+		"OPENQASM 3.0;\ninclude \"stdgates.inc\";\n"
+		"gate spin(a, b) u, v { ry(a) u; ctrl @ rz(b) u, v; inv @ s v; }\n"
+		"qubit[3] q;\nh q;\nspin(0.3, -1.1) q[0], q[2];\n"
+		"for int i in [0:1] { cx q[i], q[i+1]; }\n"
+		"negctrl @ ry(0.7) q[1], q[0];\ninv @ spin(0.5, 0.2) q[1], q[0];\n"
+		"pow(2) @ t q[2];\nU(0.4, 0.9, -0.3) q[1];\nctrl(2) @ x q[0], q[1], q[2];\n"
+		"sx q[0];\ngphase(0.3);\ninv @ U(1.2, 0.1, 0.5) q[2];\nctrl @ gphase(0.4) q[1];\n"
+		"cp(0.25) q[2], q[0];\nnegctrl @ cx q[2], q[0], q[1];\ncswap q[0], q[1], q[2];\n";
+	char qasm3[128];
+	snprintf(qasm3, sizeof qasm3, "%s/b3.qasm", tmpdir);
+	f = fopen(qasm3, "w");
+	fputs(prog3, f);
+	fclose(f);
+	f = fopen(yaml, "w");
+	fputs("matrix: {stencil: {shape: [8], points: {\"0\": 3, \"-1\": -1, \"+1\": -1}}}\n"
+		"rhs: {circuit: b3.qasm}\n", f);
+	fclose(f);
+	{
+		dw_problem p;
+		dw_error e = {0};
+		dw_qasm_program *qp = NULL;
+		dw_state *st = NULL;
+		CHECK(dw_problem_load(yaml, NULL, 0, &p, &e) == 0 && dw_problem_analyse(&p, &e) == 0
+			&& dw_qasm_parse_file(qasm3, &qp, &e) == 0 && dw_sim_run(qp, NULL, 1, &st, &e) == 0,
+			"%s", e.msg);
+		dw_circuit *c = dw_circuit_new();
+		uint32_t id = dw_stateprep_def(c, &p, &e);
+		CHECK(id != DW_NO_DEF && !strncmp(c->defs[id].name, "prep_circuit", 12),
+			"translated, not loaded by amplitudes: %s", id == DW_NO_DEF ? e.msg : c->defs[id].name);
+		if (id != DW_NO_DEF && st) {
+			uint32_t nq = dw_def_qubits(c, id), map[64];
+			for (uint32_t q = 0; q < nq; q++)
+				map[q] = q;
+			irsim s;
+			irsim_init(&s, (int)nq);
+			irsim_apply(&s, c, id, map, NULL);
+			cplx ov = 0;
+			for (size_t k = 0; k < 8; k++)
+				ov += conj(st->amp[k]) * s.psi[k];
+			CHECK(fabs(cabs(ov) - 1) < 1e-12, "translated circuit: overlap with the runtime "
+				"state %.15g", cabs(ov));
+			free(s.psi);
+		}
+		dw_state_free(st);
+		dw_qasm_free(qp);
+		dw_circuit_free(c);
+		dw_problem_free(&p);
+	}
+	remove(qasm3);
 	/* wrong qubit count: a located refusal */
 	f = fopen(yaml, "w");
 	fputs("matrix: {stencil: {shape: [8], points: {\"0\": 3, \"-1\": -1, \"+1\": -1}}}\n"
