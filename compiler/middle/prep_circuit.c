@@ -66,6 +66,8 @@ static int tfail(tx *x, long line, long col, const char *fmt, ...)
 static int push_frame(tx *x, int n, size_t *base)
 {
 	*base = x->nvars;
+	if (n <= 0)
+		return DW_OK;
 	if (x->nvars + (size_t)n > x->cap) {
 		size_t cap = x->cap ? x->cap : 64;
 		while (cap < x->nvars + (size_t)n)
