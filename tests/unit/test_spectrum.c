@@ -413,13 +413,18 @@ static void test_file_matrices(void)
 		remove(mtx);
 	}
 
-	/* stencils are not analysed yet */
+	/* stencils: closed forms (tests/unit/test_stencil.c has the rest); the
+	 * 16 x 8 case, periodic x Dirichlet, has eigenvalues
+	 * 4 - 2 cos(2 pi j/16) - 2 cos(k pi/9) (circulant and sine modes,
+	 * "Iterative methods for sparse linear systems", SIAM 2003) */
 	memset(&e, 0, sizeof e);
 	rc = dw_problem_load(CASES "good_stencil.yaml", NULL, 0, &p, &e);
 	if (!rc)
 		rc = dw_problem_analyse(&p, &e);
-	CHECK(rc == DW_EINPUT && strstr(e.msg, "stencil analysis not yet implemented"),
-		"stencil: %s", e.msg);
+	CHECK(rc == DW_OK && !strcmp(p.kappa_source, "closed-form-sine-fourier"),
+		"stencil: %s %s", e.msg, p.kappa_source);
+	CHECK_NEAR(p.lambda_min, 2 - 2 * cos(M_PI / 9), 1e-12, "stencil lambda_min");
+	CHECK_NEAR(p.lambda_max, 6 + 2 * cos(M_PI / 9), 1e-12, "stencil lambda_max");
 	dw_problem_free(&p);
 }
 
