@@ -30,6 +30,10 @@ struct dw_cost {
 	mat depth, tdepth;
 	double tdepth_w;                 /* rotation weight tdepth was built with */
 	mat stage[DW_STAGE_COUNT][DW_STAGE_COUNT]; /* [context][stage] */
+	unsigned char *touched;          /* ports the definition acts on */
+	bool have_depth, have_tdepth;    /* memoised whole-definition values */
+	int64_t depth_v, tdepth_v;
+	double tdepth_v_w;
 };
 
 void dw_cost_free(dw_cost *k);
@@ -40,6 +44,7 @@ void dw_cost_free(dw_cost *k)
 		return;
 	free(k->depth.a);
 	free(k->tdepth.a);
+	free(k->touched);
 	for (int i = 0; i < DW_STAGE_COUNT; i++)
 		for (int j = 0; j < DW_STAGE_COUNT; j++)
 			free(k->stage[i][j].a);
@@ -199,6 +204,7 @@ static int64_t gate_weight(const weighting *w, dw_gate g, dw_stage eff)
 
 static int depth_def(dw_circuit *c, uint32_t id, const weighting *w,
 	const mat **out, bool *sat, dw_error *e);
+static int64_t mat_max(const mat *x);
 
 /* Build the matrix of definition id under weighting w into *x. */
 static int build_matrix(dw_circuit *c, uint32_t id, const weighting *w,
@@ -344,6 +350,244 @@ static int depth_def(dw_circuit *c, uint32_t id, const weighting *w,
 	return DW_OK;
 }
 
+/* ---- depth by propagating a front vector (large definitions) ----
+ * Small definitions (at most small_ports qubits, 24 by default) keep a max-plus matrix;
+ * a larger one is walked with the vector of wire fronts, its small callees
+ * applied through their matrices.  A loop is iterated until one iteration
+ * shifts every wire the body touches by the same amount c: the body is
+ * max-plus linear and leaves the other wires alone, so every later
+ * iteration adds c again and the rest is added at once (exact).  A loop
+ * that does not settle within SETTLE_MAX iterations falls back to the
+ * matrix power. */
+#define SETTLE_MAX 64
+static uint32_t small_ports = 24;
+
+void dw_cost_set_matrix_limit(uint32_t ports)
+{
+	small_ports = ports;
+}
+
+/* Ports (qubits) a definition touches, as a 0/1 array of nargs + pool. */
+static const unsigned char *touched(dw_circuit *c, uint32_t id, dw_error *e)
+{
+	dw_cost *k = cost_of(c, id, e);
+	if (!k)
+		return NULL;
+	if (k->touched)
+		return k->touched;
+	const dw_def *d = &c->defs[id];
+	uint32_t m = d->nargs + d->pool;
+	unsigned char *t = calloc(m ? m : 1, 1);
+	if (!t) {
+		dw_fail(e, DW_EINTERNAL, "out of memory");
+		return NULL;
+	}
+	for (size_t i = 0; i < c->defs[id].nops; i++) {
+		const dw_op *o = &c->defs[id].ops[i];
+		if (o->kind == DW_OP_GATE) {
+			for (uint32_t q = 0; q < o->nq; q++)
+				t[c->defs[id].qs[o->q + q]] = 1;
+			if (o->cond)
+				t[o->condq] = 1;
+			continue;
+		}
+		const unsigned char *ct = touched(c, o->callee, e);
+		if (!ct) {
+			free(t);
+			return NULL;
+		}
+		d = &c->defs[id];
+		const dw_def *cd = &c->defs[o->callee];
+		for (uint32_t q = 0; q < cd->nargs; q++)
+			if (ct[q])
+				t[d->qs[o->q + q]] = 1;
+		for (uint32_t q = 0; q < cd->pool; q++)
+			if (ct[cd->nargs + q])
+				t[d->nargs + d->nanc + q] = 1;
+	}
+	k = c->defs[id].cost;
+	k->touched = t;
+	return t;
+}
+
+static int vec_def(dw_circuit *c, uint32_t id, const weighting *w, int64_t *v,
+	bool *sat, dw_error *e, int depth);
+
+/* Apply one call (reps times) of callee to the fronts v[port[.]]. */
+static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
+	uint64_t reps, const weighting *w, int64_t *v, bool *sat, dw_error *e, int depth)
+{
+	const dw_def *cd = &c->defs[callee];
+	uint32_t mc = cd->nargs + cd->pool;
+	int64_t *sub = malloc((size_t)(mc ? mc : 1) * 3 * sizeof *sub);
+	if (!sub)
+		return dw_fail(e, DW_EINTERNAL, "out of memory (depth)");
+	int64_t *prev = sub + mc, *tmp = sub + 2 * (size_t)mc;
+	for (uint32_t i = 0; i < mc; i++)
+		sub[i] = v[port[i]];
+	int rc = DW_OK;
+	if (mc <= small_ports) {
+		const mat *cm;
+		if ((rc = depth_def(c, callee, w, &cm, sat, e)) == DW_OK) {
+			mat powered = {0};
+			const mat *use = cm;
+			if (reps > 1 && (rc = mat_pow(&powered, cm, reps, sat, e)) == DW_OK)
+				use = &powered;
+			if (rc == DW_OK) {
+				for (uint32_t ou = 0; ou < mc; ou++) {
+					int64_t best = NEG;
+					for (uint32_t in = 0; in < mc; in++) {
+						int64_t r = sat_add(sub[in], use->a[(size_t)in * mc + ou], sat);
+						if (r > best)
+							best = r;
+					}
+					tmp[ou] = best;
+				}
+				memcpy(sub, tmp, mc * sizeof *sub);
+			}
+			free(powered.a);
+		}
+	} else {
+		const unsigned char *tc = touched(c, callee, e);
+		if (!tc)
+			rc = e->status;
+		uint64_t done = 0;
+		while (rc == DW_OK && done < reps) {
+			memcpy(prev, sub, mc * sizeof *sub);
+			if ((rc = vec_def(c, callee, w, sub, sat, e, depth + 1)))
+				break;
+			done++;
+			if (done == reps)
+				break;
+			/* a uniform shift over the touched wires repeats forever */
+			int64_t shift = 0;
+			bool uniform = true, first = true;
+			for (uint32_t i = 0; i < mc && uniform; i++) {
+				if (!tc[i])
+					continue;
+				int64_t dlt = sub[i] - prev[i];
+				if (first) {
+					shift = dlt;
+					first = false;
+				} else if (dlt != shift) {
+					uniform = false;
+				}
+			}
+			if (uniform) {
+				uint64_t left = reps - done;
+				int f = 0;
+				uint64_t add = dw_mul_sat((uint64_t)(shift < 0 ? 0 : shift), left, &f);
+				for (uint32_t i = 0; i < mc; i++)
+					if (tc[i])
+						sub[i] = sat_add(sub[i], add > (uint64_t)CAP ? CAP : (int64_t)add, sat);
+				if (f)
+					*sat = true;
+				done = reps;
+				break;
+			}
+			if (done >= SETTLE_MAX) {
+				/* exact fallback: the matrix power of the rest */
+				const mat *cm;
+				mat powered = {0};
+				if ((rc = depth_def(c, callee, w, &cm, sat, e)) == DW_OK &&
+				    (rc = mat_pow(&powered, cm, reps - done, sat, e)) == DW_OK) {
+					for (uint32_t ou = 0; ou < mc; ou++) {
+						int64_t best = NEG;
+						for (uint32_t in = 0; in < mc; in++) {
+							int64_t r = sat_add(sub[in],
+								powered.a[(size_t)in * mc + ou], sat);
+							if (r > best)
+								best = r;
+						}
+						tmp[ou] = best;
+					}
+					memcpy(sub, tmp, mc * sizeof *sub);
+				}
+				free(powered.a);
+				done = reps;
+			}
+		}
+	}
+	if (rc == DW_OK)
+		for (uint32_t i = 0; i < mc; i++)
+			v[port[i]] = sub[i];
+	free(sub);
+	return rc;
+}
+
+static int vec_def(dw_circuit *c, uint32_t id, const weighting *w, int64_t *v,
+	bool *sat, dw_error *e, int depth)
+{
+	if (depth > 200)
+		return dw_fail(e, DW_EINTERNAL, "internal: definitions nested too deeply");
+	const dw_def *d = &c->defs[id];
+	dw_stage eff = d->stage != DW_STAGE_NONE ? d->stage : w->ctx;
+	weighting cw = *w;
+	cw.ctx = eff;
+	if (w->kind == 2 && d->stage != DW_STAGE_NONE)
+		cw.ctx = d->stage;
+	int rc = DW_OK;
+	for (size_t i = 0; i < c->defs[id].nops && rc == DW_OK; i++) {
+		d = &c->defs[id];
+		const dw_op *o = &d->ops[i];
+		const uint32_t *qs = d->qs + o->q;
+		if (o->kind == DW_OP_GATE) {
+			int64_t best = NEG;
+			for (uint32_t t = 0; t < o->nq; t++)
+				if (v[qs[t]] > best)
+					best = v[qs[t]];
+			if (o->cond && v[o->condq] > best)
+				best = v[o->condq];
+			int64_t nv = sat_add(best, gate_weight(w, (dw_gate)o->gate, eff), sat);
+			for (uint32_t t = 0; t < o->nq; t++)
+				v[qs[t]] = nv;
+			if (o->cond)
+				v[o->condq] = nv;
+			continue;
+		}
+		const dw_def *cd = &c->defs[o->callee];
+		uint32_t mc = cd->nargs + cd->pool;
+		uint32_t *port = malloc((mc ? mc : 1) * sizeof *port);
+		if (!port)
+			return dw_fail(e, DW_EINTERNAL, "out of memory (depth)");
+		for (uint32_t t = 0; t < cd->nargs; t++)
+			port[t] = qs[t];
+		for (uint32_t t = 0; t < cd->pool; t++)
+			port[cd->nargs + t] = d->nargs + d->nanc + t;
+		uint64_t reps = o->reps;
+		uint32_t callee = o->callee;
+		rc = vec_call(c, callee, port, reps, &cw, v, sat, e, depth);
+		free(port);
+	}
+	return rc;
+}
+
+/* Depth of a definition from all its qubits at time 0 under weighting w. */
+static int depth_value(dw_circuit *c, uint32_t id, const weighting *w, int64_t *out,
+	bool *sat, dw_error *e)
+{
+	const dw_def *d = &c->defs[id];
+	uint32_t m = d->nargs + d->pool;
+	if (m <= small_ports) {
+		const mat *x;
+		if (depth_def(c, id, w, &x, sat, e))
+			return e->status;
+		*out = mat_max(x);
+		return DW_OK;
+	}
+	int64_t *v = calloc(m ? m : 1, sizeof *v);
+	if (!v)
+		return dw_fail(e, DW_EINTERNAL, "out of memory (depth)");
+	int rc = vec_def(c, id, w, v, sat, e, 0);
+	int64_t best = 0;
+	for (uint32_t i = 0; i < m; i++)
+		if (v[i] > best)
+			best = v[i];
+	free(v);
+	*out = best;
+	return rc;
+}
+
 static int64_t mat_max(const mat *x)
 {
 	int64_t best = 0;
@@ -395,16 +639,25 @@ int dw_cost_figures(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e)
 	}
 	derive(out, &sat);
 	bool dsat = false;
-	const mat *m;
 	weighting w = {W_DEPTH, DW_STAGE_NONE, DW_STAGE_NONE, c->t_weight_rotation};
-	if (depth_def(c, id, &w, &m, &dsat, e))
-		return e->status;
-	out->depth = mat_max(m);
+	dw_cost *k = c->defs[id].cost;
+	if (!k->have_depth) {
+		if (depth_value(c, id, &w, &k->depth_v, &dsat, e))
+			return e->status;
+		k = c->defs[id].cost;
+		k->have_depth = true;
+	}
+	out->depth = k->depth_v;
 	w.kind = W_TDEPTH;
-	if (depth_def(c, id, &w, &m, &dsat, e))
-		return e->status;
-	out->t_depth = mat_max(m);
-	out->saturated = sat || dsat;
+	if (!k->have_tdepth || k->tdepth_v_w != w.rot_w) {
+		if (depth_value(c, id, &w, &k->tdepth_v, &dsat, e))
+			return e->status;
+		k = c->defs[id].cost;
+		k->have_tdepth = true;
+		k->tdepth_v_w = w.rot_w;
+	}
+	out->t_depth = k->tdepth_v;
+	out->saturated = sat || dsat || k->depth_v >= CAP || k->tdepth_v >= CAP;
 	return DW_OK;
 }
 
@@ -421,11 +674,12 @@ int dw_cost_stage_figures(dw_circuit *c, uint32_t id, dw_stage s,
 	/* at the top level, unlabelled gates are "other" (stage NONE) */
 	derive(out, &sat);
 	bool dsat = false;
-	const mat *m;
 	weighting w = {2, DW_STAGE_NONE, s, c->t_weight_rotation};
-	if (depth_def(c, id, &w, &m, &dsat, e))
+	if (out->gate_count == 0) {
+		out->depth = 0;     /* no gate of this stage: nothing to weigh */
+	} else if (depth_value(c, id, &w, &out->depth, &dsat, e)) {
 		return e->status;
-	out->depth = mat_max(m);
+	}
 	out->saturated = sat || dsat;
 	return DW_OK;
 }

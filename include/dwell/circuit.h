@@ -193,6 +193,11 @@ int dw_cost_figures(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e);
  * NONE counts as s == DW_STAGE_NONE), depth counting only those gates. */
 int dw_cost_stage_figures(dw_circuit *c, uint32_t id, dw_stage s,
 	dw_figures *out, dw_error *e);
+/* Definitions on at most `ports` qubits keep a max-plus depth matrix;
+ * larger ones are evaluated by propagating a front vector (both exact).
+ * Default 24; tests set 0 to exercise the vector path everywhere.  Call it
+ * before any cost is computed on a circuit. */
+void dw_cost_set_matrix_limit(uint32_t ports);
 /* Qubits a definition needs: nargs + pool. */
 uint32_t dw_def_qubits(const dw_circuit *c, uint32_t id);
 

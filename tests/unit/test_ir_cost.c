@@ -252,7 +252,11 @@ static void test_hash_consing_and_loops(void)
 
 int main(void)
 {
+	test_random();                 /* max-plus matrices (small definitions) */
+	dw_cost_set_matrix_limit(0);   /* front vectors and loop settling */
 	test_random();
+	test_hash_consing_and_loops();
+	dw_cost_set_matrix_limit(24);
 	test_hash_consing_and_loops();
 	return check_done();
 }

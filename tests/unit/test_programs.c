@@ -248,6 +248,18 @@ static void run_problem(const char *path, const char *const *sets, size_t nsets,
 			CHECK(cn.depth == L.fig.depth, "%s: depth %lld (ledger) vs %lld (flat)", path,
 				(long long)L.fig.depth, (long long)cn.depth);
 			CHECK(L.qubits_total == nq, "%s: qubits", path);
+			/* the front-vector evaluation (used for definitions on many
+			 * qubits) gives the same depth on a fresh copy */
+			dw_program pg2;
+			dw_cost_set_matrix_limit(0);
+			if (dw_program_build(&p, 1, &pg2, &e) == 0) {
+				dw_figures f2;
+				CHECK(dw_cost_figures(pg2.circ, pg2.top, &f2, &e) == 0, "%s", e.msg);
+				CHECK(f2.depth == cn.depth, "%s: vector depth %lld vs %lld (flat)", path,
+					(long long)f2.depth, (long long)cn.depth);
+				dw_program_free(&pg2);
+			}
+			dw_cost_set_matrix_limit(24);
 			free(cn.t);
 		}
 		free(map);
