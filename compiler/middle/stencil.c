@@ -88,9 +88,12 @@ static int add_pauli(lowering *L, dw_pauli p, double cb)
 
 /* exp(-i phi/2 P) for P = X or Y on the listed local qubits (Y where ymask
  * bit i is set) times X on the others, controlled by `flag` when it is
- * not DW_NO_DEF; phi = theta * w. */
+ * not DW_NO_DEF; phi = theta * w.  The controlled rz is a crz, or for
+ * the Clifford+T gate set (which has no crz) rz(phi/2), cx, rz(-phi/2),
+ * cx: X rz(-a) X = rz(a), so the target turns by phi only when the flag
+ * is 1. */
 static void pauli_rotation(dw_builder *b, const uint32_t *qs, uint32_t k,
-	uint32_t ymask, uint32_t flag, double w)
+	uint32_t ymask, uint32_t flag, double w, bool no_crz)
 {
 	for (uint32_t i = 0; i < k; i++) {
 		if ((ymask >> i) & 1)
@@ -99,9 +102,14 @@ static void pauli_rotation(dw_builder *b, const uint32_t *qs, uint32_t k,
 	}
 	for (uint32_t i = 0; i + 1 < k; i++)
 		dw_g2(b, DW_G_CX, qs[i], qs[i + 1]);
-	if (flag == DW_NO_DEF)
+	if (flag == DW_NO_DEF) {
 		dw_r1(b, DW_G_RZ, qs[k - 1], dw_par(0, w));
-	else {
+	} else if (no_crz) {
+		dw_r1(b, DW_G_RZ, qs[k - 1], dw_par(0, w / 2));
+		dw_g2(b, DW_G_CX, flag, qs[k - 1]);
+		dw_r1(b, DW_G_RZ, qs[k - 1], dw_par(0, -w / 2));
+		dw_g2(b, DW_G_CX, flag, qs[k - 1]);
+	} else {
 		uint32_t q2[2] = {flag, qs[k - 1]};
 		dw_expr ang = dw_par(0, w);
 		dw_gate_op(b, DW_G_CRZ, q2, &ang);
@@ -308,7 +316,8 @@ static int build_term(lowering *L, const unit *u, size_t nu, const int absoff[3]
 					ymask |= 1u << k;
 				qs[k++] = i < d ? lax[i] + m[i] : ltop;
 			}
-			pauli_rotation(b, qs, k, ymask, flag, wgt[T] / alpha);
+			pauli_rotation(b, qs, k, ymask, flag, wgt[T] / alpha,
+				L->p->gates == DW_GATES_CLIFFORD_T);
 		}
 		if (ncmp == 3) {
 			dw_g3(b, DW_G_CCX, andq, cmp[2], flag);

@@ -520,6 +520,9 @@ static void test_lowering(void)
 	check_lowering("2-D non-symmetric periodic 4x2 (dilated)",
 		"matrix: {stencil: {shape: [4, 2], boundary: periodic, points: {\"0,0\": 3, "
 		"\"-1,0\": -1.5, \"1,1\": -0.5}}}\nrhs: {uniform: true}\n");
+	check_lowering("2-D Dirichlet 5-point 8x4, Clifford+T gate set (no crz)",
+		"matrix: {stencil: {shape: [8, 4], points: {\"0,0\": 4, \"-1,0\": -1, \"+1,0\": -1, "
+		"\"0,-1\": -1, \"0,+1\": -1}}}\nrhs: {uniform: true}\ntarget: {gates: clifford+t}\n");
 	check_lowering("1-D indefinite Dirichlet N=8 (variant I)",
 		"matrix: {stencil: {shape: [8], points: {\"0\": 0.5, \"-1\": -1, \"+1\": -1}}}\n"
 		"rhs: {uniform: true}\n");
