@@ -30,8 +30,9 @@
  * Pauli rotations.  Offsets with the same |o_a| share frames: their sign
  * patterns act on orthogonal pairs of frame states, so one term per choice
  * of (s_a) carries them all, with norm max |c|/alpha.
- * Frames use the increments of adder.c (DW_STAGE_ARITH); rotations are
- * DW_STAGE_TERM. */
+ * Frames use the increments of adder.c (DW_STAGE_ARITH; with
+ * target.uncompute: measure their ANDs are erased by measurement);
+ * rotations are DW_STAGE_TERM. */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -129,19 +130,16 @@ static int frame(lowering *L, dw_builder *b, const uint32_t *lq, uint32_t M,
 	uint32_t m, uint32_t q, int s, bool forward)
 {
 	uint32_t tdef = DW_NO_DEF, vdef = DW_NO_DEF;
+	bool meas = L->p->uncompute == DW_UNCOMPUTE_MEASURE;
 	if (s) {
-		uint32_t inc = dw_increment_def(L->c, M - m, false, L->e);
-		if (inc == DW_NO_DEF)
-			return L->e->status;
-		tdef = forward ? dw_inverse(L->c, inc, L->e) : inc;
+		tdef = forward ? dw_decrement_def(L->c, M - m, false, meas, L->e)
+			: dw_increment_def(L->c, M - m, false, meas, L->e);
 		if (tdef == DW_NO_DEF)
 			return L->e->status;
 	}
 	if (q == 3) {
-		uint32_t inc = dw_increment_def(L->c, M - m - 1, true, L->e);
-		if (inc == DW_NO_DEF)
-			return L->e->status;
-		vdef = forward ? dw_inverse(L->c, inc, L->e) : inc;
+		vdef = forward ? dw_decrement_def(L->c, M - m - 1, true, meas, L->e)
+			: dw_increment_def(L->c, M - m - 1, true, meas, L->e);
 		if (vdef == DW_NO_DEF)
 			return L->e->status;
 	} else if (q != 1) {
@@ -278,7 +276,8 @@ static int build_term(lowering *L, const unit *u, size_t nu, const int absoff[3]
 		if (!cond[i])
 			continue;
 		uint32_t w = M[i] - m[i] - 1;
-		cdef[ncmp] = dw_less_const_def(L->c, w, bound[i], L->e);
+		cdef[ncmp] = dw_less_const_def(L->c, w, bound[i],
+			L->p->uncompute == DW_UNCOMPUTE_MEASURE, L->e);
 		if (cdef[ncmp] == DW_NO_DEF) {
 			rc = L->e->status;
 			break;

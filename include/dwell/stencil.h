@@ -55,12 +55,21 @@ int dw_stencil_finish(dw_problem *p, const dw_stencil_spectrum *s, dw_error *e);
  * Increment |x> -> |x + 1 mod 2^w> on w qubits (qubit i = bit i), with a
  * carry ladder of Toffolis into clean ancillas; `controlled` adds a first
  * argument: the increment happens when it is |1> (arguments: [ctl], x).
- * 2(w-2) Toffolis uncontrolled, 2(w-1) controlled. */
-uint32_t dw_increment_def(dw_circuit *c, uint32_t w, bool controlled, dw_error *e);
+ * 2(w-2) Toffolis uncontrolled, 2(w-1) controlled.  With `measure` the
+ * ladder uses temporary logical-ANDs erased by measurement (the
+ * definition is then non-unitary). */
+uint32_t dw_increment_def(dw_circuit *c, uint32_t w, bool controlled, bool measure,
+	dw_error *e);
+/* |x> -> |x - 1 mod 2^w>: the inverse of the increment, or with `measure`
+ * X^w, increment, X^w. */
+uint32_t dw_decrement_def(dw_circuit *c, uint32_t w, bool controlled, bool measure,
+	dw_error *e);
 
 /* Comparator with a constant: |z>|t> -> |z>|t XOR [z < bound]> on w + 1
  * qubits (z = qubits 0..w-1, t = qubit w), 1 <= bound < 2^w, by the carry
- * of z + (2^w - bound) computed into clean ancillas and undone. */
-uint32_t dw_less_const_def(dw_circuit *c, uint32_t w, uint64_t bound, dw_error *e);
+ * of z + (2^w - bound) computed into clean ancillas and undone (with
+ * `measure`: temporary ANDs erased by measurement). */
+uint32_t dw_less_const_def(dw_circuit *c, uint32_t w, uint64_t bound, bool measure,
+	dw_error *e);
 
 #endif

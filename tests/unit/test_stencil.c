@@ -59,15 +59,124 @@ static int64_t run_basis(dw_circuit *c, uint32_t id, uint64_t in)
 	return out < 0 ? -1 : out;
 }
 
+/* Measure mode: a walker that forces the outcome of the k-th measurement
+ * to bit k of `pattern`, applies classically controlled gates when the
+ * measured qubit read 1, and reports a forced outcome of probability 0
+ * (the pattern cannot happen). */
+typedef struct msim {
+	irsim s;
+	uint64_t pattern;
+	int nmeas;
+	uint64_t outcome;     /* by absolute qubit */
+	bool impossible;
+} msim;
+
+static int msim_gate(const dw_walk_gate *g, void *ctx)
+{
+	msim *m = ctx;
+	if (g->cond && !((m->outcome >> g->cond_qubit) & 1))
+		return 0;
+	if (g->gate == DW_G_MEASURE) {
+		uint32_t q = g->qubits[0];
+		int want = (int)((m->pattern >> m->nmeas++) & 1);
+		double p = 0;
+		for (size_t i = 0; i < m->s.dim; i++)
+			if ((int)((i >> q) & 1) == want)
+				p += creal(m->s.psi[i] * conj(m->s.psi[i]));
+			else
+				m->s.psi[i] = 0;
+		if (p < 1e-20) {
+			m->impossible = true;
+			return 1;
+		}
+		for (size_t i = 0; i < m->s.dim; i++)
+			m->s.psi[i] /= sqrt(p);
+		m->outcome = (m->outcome & ~(UINT64_C(1) << q)) | ((uint64_t)want << q);
+		return 0;
+	}
+	dw_walk_gate h = *g;
+	h.cond = false;
+	return irsim_gate(&h, &m->s);
+}
+
+/* Every outcome pattern of the measurement-erased definition id on basis
+ * input `in` must give the basis output `want` (args), ancillas at |0>,
+ * up to a global phase.  Returns the number of failing patterns. */
+static int run_measured(dw_circuit *c, uint32_t id, uint64_t in, uint64_t want)
+{
+	uint32_t nq = dw_def_qubits(c, id), map[64];
+	for (uint32_t q = 0; q < nq; q++)
+		map[q] = q;
+	int bad = 0, possible = 0;
+	for (uint64_t pat = 0; pat < 256; pat++) {
+		msim m;
+		memset(&m, 0, sizeof m);
+		irsim_init(&m.s, (int)nq);
+		m.s.psi[0] = 0;
+		m.s.psi[in] = 1;
+		m.pattern = pat;
+		dw_walk(c, id, map, NULL, msim_gate, &m);
+		if (!m.impossible) {
+			possible++;
+			bad += !(cabs(m.s.psi[want]) > 1 - 1e-9);
+		}
+		free(m.s.psi);
+		if (m.nmeas < 8 && pat + 1 >= (UINT64_C(1) << m.nmeas) && !m.impossible)
+			break;    /* every pattern of the measurements made was tried */
+	}
+	return bad + (possible == 0);
+}
+
+static void test_arith_measured(void)
+{
+	dw_error e = {0};
+	for (uint32_t w = 1; w <= 5; w++) {
+		dw_circuit *c = dw_circuit_new();
+		uint32_t inc = dw_increment_def(c, w, false, true, &e);
+		uint32_t cinc = dw_increment_def(c, w, true, true, &e);
+		uint32_t dec = dw_decrement_def(c, w, false, true, &e);
+		uint32_t cdec = dw_decrement_def(c, w, true, true, &e);
+		CHECK(inc != DW_NO_DEF && cinc != DW_NO_DEF && dec != DW_NO_DEF && cdec != DW_NO_DEF,
+			"%s", e.msg);
+		uint64_t N = 1u << w;
+		int bad = 0;
+		for (uint64_t x = 0; x < N; x++) {
+			bad += run_measured(c, inc, x, (x + 1) % N);
+			bad += run_measured(c, dec, x, (x + N - 1) % N);
+			for (uint64_t ctl = 0; ctl < 2; ctl++) {
+				uint64_t up = ctl ? (x + 1) % N : x, dn = ctl ? (x + N - 1) % N : x;
+				bad += run_measured(c, cinc, ctl | x << 1, ctl | up << 1);
+				bad += run_measured(c, cdec, ctl | x << 1, ctl | dn << 1);
+			}
+		}
+		CHECK(bad == 0, "measured increments of width %u: %d wrong outcomes", w, bad);
+		dw_figures f;
+		dw_cost_figures(c, cinc, &f, &e);
+		CHECK(f.toffoli_count == 0 && f.measure_count == (w >= 2 ? w - 1 : 0),
+			"measured controlled increment: %llu Toffolis, %llu measurements (w %u)",
+			(unsigned long long)f.toffoli_count, (unsigned long long)f.measure_count, w);
+		bad = 0;
+		for (uint64_t bound = 1; bound < N; bound++) {
+			uint32_t lt = dw_less_const_def(c, w, bound, true, &e);
+			CHECK(lt != DW_NO_DEF, "%s", e.msg);
+			for (uint64_t z = 0; z < N; z++)
+				for (uint64_t t = 0; t < 2; t++)
+					bad += run_measured(c, lt, z | t << w, z | (t ^ (z < bound)) << w);
+		}
+		CHECK(bad == 0, "measured comparators of width %u: %d wrong outcomes", w, bad);
+		dw_circuit_free(c);
+	}
+}
+
 static void test_arith(void)
 {
 	dw_error e = {0};
 	for (uint32_t w = 1; w <= 6; w++) {
 		dw_circuit *c = dw_circuit_new();
-		uint32_t inc = dw_increment_def(c, w, false, &e);
-		uint32_t cinc = dw_increment_def(c, w, true, &e);
-		uint32_t dec = dw_inverse(c, inc, &e);
-		uint32_t cdec = dw_inverse(c, cinc, &e);
+		uint32_t inc = dw_increment_def(c, w, false, false, &e);
+		uint32_t cinc = dw_increment_def(c, w, true, false, &e);
+		uint32_t dec = dw_decrement_def(c, w, false, false, &e);
+		uint32_t cdec = dw_decrement_def(c, w, true, false, &e);
 		CHECK(inc != DW_NO_DEF && cinc != DW_NO_DEF && dec != DW_NO_DEF && cdec != DW_NO_DEF,
 			"%s", e.msg);
 		uint64_t N = 1u << w;
@@ -93,7 +202,7 @@ static void test_arith(void)
 			(unsigned long long)f.toffoli_count, w);
 		bad = 0;
 		for (uint64_t bound = 1; bound < N; bound++) {
-			uint32_t lt = dw_less_const_def(c, w, bound, &e);
+			uint32_t lt = dw_less_const_def(c, w, bound, false, &e);
 			CHECK(lt != DW_NO_DEF, "%s", e.msg);
 			for (uint64_t z = 0; z < N; z++)
 				for (uint64_t t = 0; t < 2; t++) {
@@ -663,6 +772,7 @@ int main(void)
 		return 1;
 	}
 	test_arith();
+	test_arith_measured();
 	test_spectra();
 	test_lowering();
 	test_prep_circuit();
