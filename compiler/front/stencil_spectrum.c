@@ -408,6 +408,96 @@ static int analyse_separable(const dw_stencil *st, const dw_stencil_class *cls,
 	return rc;
 }
 
+/* ---- tensor products of 3-point operators (compact 9- and 27-point
+ * stencils) ----
+ * When every point moves by at most 1 along each axis and all 2^|T| sign
+ * patterns of a support T carry the same coefficient c_T, A = sum_T c_T
+ * (x)_(a in T) (S_a + S_a^T), and every factor is diagonalised by the
+ * axis's modes (sine or Fourier), so the eigenvalues are sum_T c_T
+ * prod_(a in T) u_a with u_a = 2 cos(theta_a) = 2 - d_a,
+ * d_a = 4 sin^2(theta_a / 2) (common practice).  That is multilinear in
+ * the d_a, so its extremes over the grid sit at the corners of the box of
+ * the d_a's extreme values, which are grid values.  Expanded in the d_a
+ * with the constant term summed first, it stays exact when the
+ * coefficients cancel.  Only definite operators are settled here. */
+static int analyse_tensor3(const dw_stencil *st, const dw_stencil_class *cls,
+	size_t ncls, bool herm, dw_stencil_spectrum *out)
+{
+	if (!herm)
+		return 0;
+	double cT[8] = {0};
+	int count[8] = {0};
+	for (size_t k = 0; k < ncls; k++) {
+		unsigned T = 0;
+		for (int a = 0; a < st->dims; a++) {
+			int o = cls[k].off[a];
+			if (o < -1 || o > 1)
+				return 0;
+			if (o)
+				T |= 1u << a;
+		}
+		if (count[T] && fabs(cT[T] - cls[k].coeff) > SYM_RTOL * fmax(1, fabs(cT[T])))
+			return 0;
+		cT[T] = cls[k].coeff;
+		count[T]++;
+	}
+	bool any_dir = false, any_per = false;
+	unsigned used = 0;
+	for (unsigned T = 0; T < (1u << st->dims); T++) {
+		if (!count[T])
+			continue;
+		if (count[T] != 1 << __builtin_popcount(T))
+			return 0;      /* a sign pattern missing (or merged on a short axis) */
+		used |= T;
+	}
+	double dlo[3] = {0}, dhi[3] = {0};
+	for (int a = 0; a < st->dims; a++) {
+		if (!((used >> a) & 1))
+			continue;
+		double N = (double)st->shape[a];
+		if (st->periodic[a]) {
+			any_per = true;
+			dlo[a] = 0;
+			dhi[a] = 4;
+		} else {
+			any_dir = true;
+			double s1 = sin(M_PI / (2 * (N + 1))), s2 = sin(N * M_PI / (2 * (N + 1)));
+			dlo[a] = 4 * s1 * s1;
+			dhi[a] = 4 * s2 * s2;
+		}
+	}
+	/* g[R] = (-1)^|R| sum_(T >= R) c_T 2^|T \ R| */
+	double g[8] = {0};
+	for (unsigned R = 0; R < (1u << st->dims); R++)
+		for (unsigned T = 0; T < (1u << st->dims); T++)
+			if ((T & R) == R && count[T])
+				g[R] += cT[T] * (double)(1u << __builtin_popcount(T & ~R))
+					* (__builtin_popcount(R) % 2 ? -1 : 1);
+	double lmin = INFINITY, lmax = -INFINITY;
+	for (unsigned corner = 0; corner < (1u << st->dims); corner++) {
+		double f = 0;
+		for (unsigned R = 1; R < (1u << st->dims); R++) {
+			double m = g[R];
+			for (int a = 0; a < st->dims; a++)
+				if ((R >> a) & 1)
+					m *= (corner >> a) & 1 ? dhi[a] : dlo[a];
+			f += m;
+		}
+		f += g[0];
+		lmin = fmin(lmin, f);
+		lmax = fmax(lmax, f);
+	}
+	if (!(lmin > 0 || lmax < 0))
+		return 0;      /* indefinite: the other methods */
+	out->lmin = lmin;
+	out->lmax = lmax;
+	out->alpha = fmax(fabs(lmin), fabs(lmax));
+	out->sigma_min = lmin > 0 ? lmin : -lmax;
+	snprintf(out->source, sizeof out->source, "%s", any_dir && any_per
+		? "closed-form-sine-fourier" : any_dir ? "closed-form-sine" : "closed-form-fourier");
+	return 1;
+}
+
 /* ---- periodic grids of moderate size: every symbol value ---- */
 static int analyse_fourier_all(const dw_stencil *st, const dw_stencil_class *cls,
 	size_t ncls, bool herm, dw_stencil_spectrum *out, dw_error *e)
@@ -557,6 +647,8 @@ int dw_stencil_analyse(const dw_problem *p, dw_stencil_spectrum *out, dw_error *
 		free(cls);
 		return -rc;
 	}
+	if (rc == 0)
+		rc = analyse_tensor3(st, cls, ncls, herm, out);
 	if (rc == 0) {
 		bool all_periodic = true;
 		for (int a = 0; a < st->dims; a++)
@@ -570,8 +662,9 @@ int dw_stencil_analyse(const dw_problem *p, dw_stencil_spectrum *out, dw_error *
 			rc = dw_fail_at(e, DW_EINPUT, p->path, 0, "matrix.stencil: no closed "
 				"form for this stencil on this grid (closed forms cover periodic "
 				"grids of up to %d points, separable stencils with periodic axes "
-				"or symmetric 3-point Dirichlet axes), and its %lld points exceed "
-				"the %d that the dense analysis handles", ENUM_MAX_POINTS,
+				"or symmetric 3-point Dirichlet axes, and definite compact stencils "
+				"whose corner points share one coefficient), and its %lld points "
+				"exceed the %d that the dense analysis handles", ENUM_MAX_POINTS,
 				(long long)tot, DENSE_MAX_POINTS);
 	} else {
 		rc = DW_OK;

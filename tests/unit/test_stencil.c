@@ -323,6 +323,24 @@ static void test_spectra(void)
 			"2^25 indefinite lambda_min %.15g", p.lambda_min);
 	}
 	dw_problem_free(&p);
+	/* the compact 9-point operator 20 - 4(u + v) - u v, u = 2 cos(j pi/(N+1)),
+	 * v likewise, on 2^20 x 2^20 points: smallest eigenvalue at u = v =
+	 * 2 - delta, delta = 4 sin^2(pi/(2(N+1))): 12 delta - delta^2 (derived
+	 * here from the sine modes, METHODS 11.1), largest at u = v = -(2 - delta):
+	 * 20 + 8(2 - delta) - (2 - delta)^2 = 32 - 4 delta - delta^2 */
+	CHECK(load("matrix: {stencil: {shape: [1048576, 1048576], points: {\"0,0\": 20, "
+		"\"-1,0\": -4, \"+1,0\": -4, \"0,-1\": -4, \"0,+1\": -4, \"1,1\": -1, "
+		"\"-1,-1\": -1, \"1,-1\": -1, \"-1,1\": -1}}}\nrhs: {uniform: true}\n", &p, &e) == 0,
+		"%s", e.msg);
+	{
+		double sn = sin(M_PI / (2.0 * (1048576.0 + 1))), dl = 4 * sn * sn;
+		CHECK(fabs(p.lambda_min / (12 * dl - dl * dl) - 1) < 1e-9, "9-point lambda_min %.15g "
+			"vs %.15g", p.lambda_min, 12 * dl - dl * dl);
+		CHECK(fabs(p.lambda_max - (32 - 4 * dl - dl * dl)) < 1e-12, "9-point lambda_max %.15g",
+			p.lambda_max);
+		CHECK(!strcmp(p.kappa_source, "closed-form-sine"), "source %s", p.kappa_source);
+	}
+	dw_problem_free(&p);
 	/* periodic circulant: 2.5 - 2 cos(2 pi k/N) in [0.5, 4.5] (common practice) */
 	CHECK(load("matrix: {stencil: {shape: [16], boundary: periodic, points: {\"0\": 2.5, "
 		"\"-1\": -1, \"+1\": -1}}}\nrhs: {uniform: true}\n", &p, &e) == 0, "%s", e.msg);
@@ -358,13 +376,26 @@ static void test_spectra(void)
 		/* non-symmetric (upwind advection-diffusion), both boundaries: dilation */
 		"{shape: [16], points: {\"0\": 2.2, \"-1\": -1.5, \"+1\": -0.5}}",
 		"{shape: [16], boundary: periodic, points: {\"0\": 2.2, \"-1\": -1.5, \"+1\": -0.5}}",
+		/* compact 9-point (corners share one coefficient), Dirichlet and
+		 * mixed: tensor products of 3-point operators */
+		"{shape: [8, 16], points: {\"0,0\": 20, \"-1,0\": -4, \"+1,0\": -4, \"0,-1\": -4, "
+		"\"0,+1\": -4, \"1,1\": -1, \"-1,-1\": -1, \"1,-1\": -1, \"-1,1\": -1}}",
+		"{shape: [16, 8], boundary: [periodic, dirichlet], points: {\"0,0\": 21, \"-1,0\": -4, "
+		"\"+1,0\": -4, \"0,-1\": -3, \"0,+1\": -3, \"1,1\": 0.5, \"-1,-1\": 0.5, "
+		"\"1,-1\": 0.5, \"-1,1\": 0.5}}",
+		/* 3-D with edge and corner points, one coefficient per support */
+		"{shape: [4, 8, 4], boundary: [dirichlet, periodic, dirichlet], points: {\"0,0,0\": 12, "
+		"\"1,0,0\": -1, \"-1,0,0\": -1, \"0,1,0\": -1, \"0,-1,0\": -1, \"0,0,1\": -1, "
+		"\"0,0,-1\": -1, \"1,1,1\": -0.2, \"1,1,-1\": -0.2, \"1,-1,1\": -0.2, "
+		"\"1,-1,-1\": -0.2, \"-1,1,1\": -0.2, \"-1,1,-1\": -0.2, \"-1,-1,1\": -0.2, "
+		"\"-1,-1,-1\": -0.2}}",
 		/* 3-D 7-point, periodic on axis 1 */
 		"{shape: [4, 4, 2], boundary: [dirichlet, periodic, dirichlet], points: {\"0,0,0\": 6.5, "
 		"\"1,0,0\": -1, \"-1,0,0\": -1, \"0,1,0\": -1, \"0,-1,0\": -1, \"0,0,1\": -1, "
 		"\"0,0,-1\": -1}}",
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof *cases; i++) {
-		char y[700];
+		char y[1200];
 		snprintf(y, sizeof y, "matrix: {stencil: %s}\nrhs: {basis: 1}\n", cases[i]);
 		if (load(y, &p, &e)) {
 			CHECK(0, "case %zu: %s", i, e.msg);
