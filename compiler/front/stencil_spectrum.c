@@ -115,6 +115,16 @@ bool dw_stencil_symmetric(const dw_stencil *st)
 	return s;
 }
 
+/* k o mod N in [0, N) for 0 <= k, |o| <= 4, N <= 2^62, without overflow
+ * (each partial sum stays below 2^63). */
+static int64_t mulmod_small(int64_t k, int o, int64_t N)
+{
+	int64_t r = k % N, acc = 0;
+	for (int i = 0; i < abs(o); i++)
+		acc = (acc + r) % N;
+	return o < 0 ? (N - acc) % N : acc;
+}
+
 static int64_t total_points(const dw_stencil *st)
 {
 	int64_t t = 1;
@@ -144,7 +154,7 @@ static double complex axis_symbol(const axis_op *ax, int64_t k)
 	for (int o = -4; o <= 4; o++)
 		if (ax->c[o + 4] != 0) {
 			/* reduce k*o mod N exactly before taking the angle */
-			int64_t r = ((k * o) % ax->N + ax->N) % ax->N;
+			int64_t r = mulmod_small(k, o, ax->N);
 			double th = 2 * M_PI * (double)r / (double)ax->N;
 			s += ax->c[o + 4] * cexp(I * th);
 		}
@@ -181,7 +191,7 @@ static double axis_dev(const axis_op *ax, int64_t k)
 	double d = 0;
 	for (int o = -4; o <= 4; o++)
 		if (ax->c[o + 4] != 0) {
-			int64_t r = ((k * o) % ax->N + ax->N) % ax->N;
+			int64_t r = mulmod_small(k, o, ax->N);
 			double sn = sin(M_PI * (double)r / (double)ax->N);
 			d -= 2 * creal(ax->c[o + 4]) * sn * sn;
 		}
@@ -513,7 +523,7 @@ static int analyse_fourier_all(const dw_stencil *st, const dw_stencil_class *cls
 		}
 		for (int64_t k = 0; k < N; k++)
 			for (int o = -4; o <= 4; o++) {
-				int64_t r = ((k * o) % N + N) % N;
+				int64_t r = mulmod_small(k, o, N);
 				tab[a][k * 9 + o + 4] = cexp(I * 2 * M_PI * (double)r / (double)N);
 			}
 	}
@@ -636,10 +646,13 @@ int dw_stencil_analyse(const dw_problem *p, dw_stencil_spectrum *out, dw_error *
 	bool herm = symmetric(st, cls, ncls);
 	int64_t nnz = 0;
 	for (size_t c = 0; c < ncls; c++) {
-		int64_t cnt = 1;
+		uint64_t cnt = 1;
 		for (int a = 0; a < st->dims; a++)
-			cnt *= st->periodic[a] ? st->shape[a] : st->shape[a] - abs(cls[c].off[a]);
-		nnz += cnt;
+			cnt *= (uint64_t)(st->periodic[a] ? st->shape[a]
+				: st->shape[a] - abs(cls[c].off[a]));   /* at most 2^62 in all */
+		nnz = (int64_t)dw_add_sat((uint64_t)nnz, cnt, NULL);
+		if (nnz < 0)
+			nnz = INT64_MAX;        /* saturate */
 	}
 	out->nnz = nnz;
 	int rc = analyse_separable(st, cls, ncls, herm, out, e);
@@ -675,7 +688,8 @@ int dw_stencil_analyse(const dw_problem *p, dw_stencil_spectrum *out, dw_error *
 
 int dw_stencil_finish(dw_problem *p, const dw_stencil_spectrum *s, dw_error *e)
 {
-	p->nnz = s->dilate ? 2 * s->nnz : s->nnz;
+	p->nnz = s->dilate && s->nnz <= INT64_MAX / 2 ? 2 * s->nnz
+		: s->dilate ? INT64_MAX : s->nnz;
 	if (!s->dilate)
 		return DW_OK;
 	int n = p->n;

@@ -429,9 +429,15 @@ int dw_stencil_terms(const dw_problem *p, const dw_layout *lay, dw_circuit *c,
 					|| abs(u[j].off[2]) != absoff[2])
 				continue;
 			done[j] = true;
-			if (ng < 32)
-				grp[ng++] = u[j];
+			if (ng == 32) {
+				rc = dw_fail(e, DW_EINTERNAL, "internal: more than 32 stencil points "
+					"with the same |offset|");
+				break;
+			}
+			grp[ng++] = u[j];
 		}
+		if (rc)
+			break;
 		int d = (absoff[0] != 0) + (absoff[1] != 0) + (absoff[2] != 0);
 		for (unsigned s = 0; s < (1u << d) && !rc; s++)
 			rc = build_term(&L, grp, ng, absoff, s);
