@@ -50,9 +50,29 @@ static int rhs_vector(const dw_problem *p, cplx *b, dw_error *e)
 			b[i] = p->amps[i];
 			break;
 		default:
-			return dw_fail(e, DW_EINPUT, "%s: verify: rhs.circuit is not supported by "
-				"verify yet", p->path);
+			b[i] = 0;   /* rhs.circuit: filled below */
 		}
+	}
+	if (p->rhs_kind == DW_RHS_CIRCUIT) {
+		/* the user's preparation circuit, simulated by the runtime: |b> on
+		 * its qubits (the low sys qubits), zeros above */
+		dw_qasm_program *prog = NULL;
+		dw_state *st = NULL;
+		if (dw_qasm_parse_file(p->rhs_file, &prog, e) ||
+		    dw_sim_run(prog, NULL, 1, &st, e)) {
+			dw_qasm_free(prog);
+			return e->status;
+		}
+		if (st->dim > N) {
+			dw_state_free(st);
+			dw_qasm_free(prog);
+			return dw_fail(e, DW_EINPUT, "%s: rhs.circuit has more qubits than the "
+				"system", p->rhs_file);
+		}
+		for (uint64_t i = 0; i < st->dim; i++)
+			b[i] = st->amp[i];
+		dw_state_free(st);
+		dw_qasm_free(prog);
 	}
 	return DW_OK;
 }

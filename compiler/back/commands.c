@@ -263,25 +263,34 @@ int dw_cmd_inspect(int argc, char **argv)
 	} else {
 		const dw_schedule *s = &pg.sched;
 		printf("problem %s (%s)\n", p.name, p.path);
-		printf("  matrix: %s, n = %d system qubits, dimension %llu\n",
-			p.matrix_kind == DW_MATRIX_PAULI ? "Pauli sum" : "explicit",
-			p.n, (unsigned long long)1 << p.n);
+		printf("  matrix: %s, n = %d system qubits, dimension %llu%s\n",
+			p.matrix_kind == DW_MATRIX_PAULI ? "Pauli sum"
+			: p.matrix_kind == DW_MATRIX_FILE ? "explicit (Matrix Market)" : "stencil",
+			p.n, (unsigned long long)1 << p.n, p.dilated ? " (dilated)" : "");
 		if (p.matrix_kind == DW_MATRIX_PAULI)
 			printf("  %zu Pauli terms\n", p.npauli);
+		else if (p.matrix_kind == DW_MATRIX_FILE && p.matrix)
+			printf("  %lld nonzeros\n", (long long)p.matrix->nnz);
+		else if (p.matrix_kind == DW_MATRIX_STENCIL)
+			printf("  %d-D grid, %zu stencil points\n", p.stencil.dims, p.stencil.npoints);
 		printf("  eigenvalues in [%.10g, %.10g], alpha = %.10g, sigma_min = %.10g\n",
 			p.lambda_min, p.lambda_max, p.alpha, p.sigma_min);
 		printf("  kappa = %.10g (%s), variant %c%s\n", p.kappa, p.kappa_source, p.variant,
 			p.variant == 'P' ? " (positive definite)" : " (indefinite: one more qubit sgn)");
-		printf("terms of K(s): %zu Pauli rotations per group, order-%d formula\n",
-			pg.nterms, pg.order);
+		size_t npt = 0;
+		for (size_t i = 0; i < pg.nterms; i++)
+			npt += pg.terms[i].pauli;
+		printf("terms of K(s): %zu per group (%zu Pauli rotations, %zu lowered "
+			"1-sparse terms), order-%d formula\n", pg.nterms, npt, pg.nterms - npt,
+			pg.order);
 		printf("error budget: path %.4g, split %.4g, synth %.4g, data %.4g (total %.4g)\n",
 			pg.budget.path, pg.budget.split, pg.budget.synth, pg.budget.data,
 			pg.budget.total);
 		printf("schedule (seed %llu): %lld segments%s, path length %.6g, estimated path "
 			"error %.4g\n", (unsigned long long)s->seed, (long long)s->q,
 			s->q_auto ? " (auto)" : "", s->length, s->path_error);
-		printf("  total dwell time %.6g drawn, %.6g expected; %lld product-formula "
-			"steps (%s)\n", s->time_drawn, s->time_expected, (long long)pg.steps_total,
+		printf("  total dwell time %.6g drawn, %.6g expected; %llu product-formula "
+			"steps (%s)\n", s->time_drawn, s->time_expected, (unsigned long long)pg.steps_total,
 			pg.bound_used);
 		printf("  %8s %12s %12s %12s %8s\n", "segment", "s", "gap bound", "dwell", "steps");
 		for (int64_t j = 0; j < s->q; j++) {

@@ -171,9 +171,9 @@ static void write_json(FILE *f, const dw_ledger *L)
 	jnum(f, s->time_expected);
 	fprintf(f, "\n  },\n");
 
-	fprintf(f, "  \"formula\": {\n    \"order\": %d,\n    \"steps_total\": %lld,\n"
+	fprintf(f, "  \"formula\": {\n    \"order\": %d,\n    \"steps_total\": %llu,\n"
 		"    \"steps_min\": %lld,\n    \"steps_max\": %lld,\n    \"bound\": ",
-		pg->order, (long long)pg->steps_total, (long long)(s->q ? rmin : 0),
+		pg->order, (unsigned long long)pg->steps_total, (long long)(s->q ? rmin : 0),
 		(long long)rmax);
 	jstr(f, pg->bound_used);
 	fprintf(f, ",\n    \"terms\": %zu,\n    \"reflections_per_step\": %d\n  },\n",
@@ -351,8 +351,8 @@ void dw_ledger_table(const dw_ledger *L, FILE *f)
 		path_name(s->path), (long long)s->q, s->q_auto ? " (auto)" : "", s->length,
 		(unsigned long long)s->seed);
 	fprintf(f, "  total dwell time %.6g (expected %.6g)\n", s->time_drawn, s->time_expected);
-	fprintf(f, "formula\n  order %d, %lld steps in all, r_j by %s\n", pg->order,
-		(long long)pg->steps_total, pg->bound_used);
+	fprintf(f, "formula\n  order %d, %llu steps in all, r_j by %s\n", pg->order,
+		(unsigned long long)pg->steps_total, pg->bound_used);
 	fprintf(f, "error budget (trace distance)\n  path %.3g + split %.3g + synth %.3g + "
 		"data %.3g = %.3g\n", pg->budget.path, pg->budget.split, pg->budget.synth,
 		pg->budget.data, pg->budget.total);

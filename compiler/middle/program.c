@@ -163,11 +163,18 @@ static uint32_t segment_def(ctx *x, int64_t r)
 		if (body == DW_NO_DEF)
 			return DW_NO_DEF;
 	}
+	/* the tail is the same for every segment: one shared definition, so
+	 * the text stays small however many segments there are */
+	dw_builder *tb = dw_begin(x->c, "trotter_tail", x->nq, 2, DW_STAGE_NONE);
+	emit_items(x, tb, 1, n, -1);
+	uint32_t tail = dw_end(tb, x->e);
+	if (tail == DW_NO_DEF)
+		return DW_NO_DEF;
 	dw_builder *b = dw_begin(x->c, "segment", x->nq, 2, DW_STAGE_NONE);
 	emit_items(x, b, 0, 1, -1);
 	if (r > 1)
 		dw_call(b, body, all, par, (uint64_t)(r - 1));
-	emit_items(x, b, 1, n, -1);
+	dw_call(b, tail, all, par, 1);
 	return dw_end(b, x->e);
 }
 
@@ -361,8 +368,7 @@ int dw_program_build(const dw_problem *p, uint32_t instance, dw_program *out,
 		sg->bound = (double)sg->steps *
 			dw_formula_step_bound(&bound, sg->s, sg->dwell / (double)sg->steps);
 		int of = 0;
-		out->steps_total = (int64_t)dw_add_sat((uint64_t)out->steps_total,
-			(uint64_t)sg->steps, &of);
+		out->steps_total = dw_add_sat(out->steps_total, (uint64_t)sg->steps, &of);
 	}
 	if (rc == DW_OK) {
 		x.c = out->circ;

@@ -116,7 +116,7 @@ typedef struct dw_program {
 	dw_schedule sched;
 	dw_error_budget budget;
 	int order;
-	int64_t steps_total;      /* sum of r_j */
+	uint64_t steps_total;     /* sum of r_j (saturates at 2^64-1) */
 	char bound_used[64];      /* how r_j was chosen */
 	size_t nterms;            /* terms of K(s) */
 	dw_term *terms;
