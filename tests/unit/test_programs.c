@@ -2,8 +2,10 @@
  * For each problem file given on the command line: compile K instances,
  * simulate each (tests/unit/irsim.h), average the reduced state on
  * (anc, [sgn], sys), and compare it with the target |0>[|+>]|x>, x solving
- * A x = b by LAPACKE_zgesv on the dense matrix: the trace distance must be
- * within the precision target, and every work qubit must return to |0>.
+ * the original A x = b by LAPACKE_zgesv (dw_verify_target): the trace
+ * distance must be within the precision target, and every work qubit must
+ * return to |0>.  `dwell verify` (emitted text, runtime reader and
+ * simulator) must give the same figures as this simulation of the IR.
  * Also checks that the hierarchical ledger figures equal a brute-force
  * count of the flattened program. */
 #include <complex.h>
@@ -17,139 +19,6 @@
 #include "irsim.h"
 
 typedef double complex cplx;
-
-static void rhs_vector(const dw_problem *p, cplx *b)
-{
-	size_t N = (size_t)1 << p->n;
-	if (p->rhs_kind == DW_RHS_CIRCUIT) {
-		/* the user circuit run by the runtime simulator, on the low qubits */
-		dw_qasm_program *prog = NULL;
-		dw_state *st = NULL;
-		dw_error e = {0};
-		memset(b, 0, N * sizeof *b);
-		CHECK(dw_qasm_parse_file(p->rhs_file, &prog, &e) == 0
-			&& dw_sim_run(prog, NULL, 1, &st, &e) == 0, "%s", e.msg);
-		for (uint64_t i = 0; st && i < st->dim && i < N; i++)
-			b[i] = st->amp[i];
-		dw_state_free(st);
-		dw_qasm_free(prog);
-		return;
-	}
-	for (size_t i = 0; i < N; i++) {
-		switch (p->rhs_kind) {
-		case DW_RHS_BASIS:
-			b[i] = i == p->basis ? 1 : 0;
-			break;
-		case DW_RHS_UNIFORM:
-			b[i] = 1 / sqrt((double)N);
-			break;
-		case DW_RHS_PRODUCT: {
-			cplx a = 1;
-			for (int k = 0; k < p->n; k++)
-				a *= (i >> k) & 1 ? cexp(I * p->product[k][1]) * sin(p->product[k][0] / 2)
-					: cos(p->product[k][0] / 2);
-			b[i] = a;
-			break;
-		}
-		default:
-			b[i] = p->amps[i];
-		}
-	}
-}
-
-/* Dense column-major A of a stencil, built here from the DESIGN 3.3
- * convention: index j = x0 + N0 x1 + N0 N1 x2, A[j][j+o] += c, Dirichlet
- * drops neighbours outside the grid, periodic wraps them. */
-static cplx *stencil_matrix(const dw_stencil *st, size_t *dout)
-{
-	int64_t n[3] = {st->shape[0], st->dims > 1 ? st->shape[1] : 1,
-		st->dims > 2 ? st->shape[2] : 1};
-	size_t d = (size_t)(n[0] * n[1] * n[2]);
-	cplx *A = calloc(d * d, sizeof *A);
-	for (int64_t j = 0; j < (int64_t)d; j++) {
-		int64_t x[3] = {j % n[0], (j / n[0]) % n[1], j / (n[0] * n[1])};
-		for (size_t k = 0; k < st->npoints; k++) {
-			int64_t col = 0, stride = 1;
-			bool in = true;
-			for (int a = 0; a < 3; a++) {
-				int64_t y = x[a] + (a < st->dims ? st->offset[k][a] : 0);
-				if (y < 0 || y >= n[a]) {
-					if (st->periodic[a])
-						y = (y % n[a] + n[a]) % n[a];
-					else
-						in = false;
-				}
-				col += y * stride;
-				stride *= n[a];
-			}
-			if (in)
-				A[(size_t)j + (size_t)col * d] += st->coeff[k];
-		}
-	}
-	*dout = d;
-	return A;
-}
-
-/* The exact normalised solution in the analysed space (2^n entries), by
- * LAPACKE_zgesv on the dense unscaled matrix: the Pauli sum, or for a
- * matrix file the ORIGINAL file (read again, d rows): x is put in rows
- * 0..d-1, zero on the padding, and for a dilated problem in the upper
- * block (top sys qubit 1: the target |1>|x>, DESIGN 3.1). */
-static int exact_solution(const dw_problem *p, cplx *xfull, dw_error *e)
-{
-	size_t N = (size_t)1 << p->n;
-	cplx *bfull = malloc(N * sizeof *bfull);
-	rhs_vector(p, bfull);
-	size_t d = N, off = 0;
-	cplx *A = NULL;
-	if (p->matrix_kind == DW_MATRIX_FILE) {
-		dw_csr *m = NULL;
-		if (dw_mtx_read_matrix(p->matrix_file, NULL, &m, e)) {
-			free(bfull);
-			return e->status;
-		}
-		d = (size_t)m->rows;
-		A = calloc(d * d, sizeof *A);
-		for (int64_t r = 0; r < m->rows; r++)
-			for (int64_t k = m->rowptr[r]; k < m->rowptr[r + 1]; k++)
-				A[(size_t)r + (size_t)m->col[k] * d] += m->val[k];
-		dw_csr_free(m);
-		if (p->dilated)
-			off = N / 2;
-	} else if (p->matrix_kind == DW_MATRIX_STENCIL) {
-		A = stencil_matrix(&p->stencil, &d);
-		if (p->dilated)
-			off = N / 2;
-	} else {
-		A = dw_pauli_dense(p, e);
-		if (!A) {
-			free(bfull);
-			return e->status;
-		}
-	}
-	/* the original b: the first d entries (padding and the dilation's
-	 * lower block are zero by construction) */
-	cplx *x = malloc(d * sizeof *x);
-	for (size_t i = 0; i < d; i++)
-		x[i] = bfull[i];
-	for (size_t i = d; i < N; i++)
-		CHECK(cabs(bfull[i]) < 1e-15, "rhs zero beyond the original rows");
-	lapack_int *ipiv = malloc(d * sizeof *ipiv);
-	int info = LAPACKE_zgesv(LAPACK_COL_MAJOR, (lapack_int)d, 1, A, (lapack_int)d, ipiv,
-		x, (lapack_int)d);
-	CHECK(info == 0, "zgesv info %d", info);
-	double nx = 0;
-	for (size_t i = 0; i < d; i++)
-		nx += creal(x[i] * conj(x[i]));
-	memset(xfull, 0, N * sizeof *xfull);
-	for (size_t i = 0; i < d; i++)
-		xfull[off + i] = x[i] / sqrt(nx);
-	free(x);
-	free(A);
-	free(ipiv);
-	free(bfull);
-	return DW_OK;
-}
 
 typedef struct counter {
 	uint64_t gates[DW_G_COUNT];
@@ -186,24 +55,13 @@ static void run_problem(const char *path, const char *const *sets, size_t nsets,
 		CHECK(0, "%s: %s", path, e.msg);
 		return;
 	}
-	size_t N = (size_t)1 << p.n;
-	cplx *x = malloc(N * sizeof *x);
-	if (exact_solution(&p, x, &e)) {
+	/* the target |0>[|+>]|x>, x by LAPACKE_zgesv on the original matrix */
+	cplx *target = NULL;
+	size_t D = 0;
+	if (dw_verify_target(&p, &target, &D, &e)) {
 		CHECK(0, "%s: exact solution: %s", path, e.msg);
-		free(x);
 		dw_problem_free(&p);
 		return;
-	}
-	bool ind = p.variant == 'I';
-	size_t D = N << (ind ? 2 : 1);   /* anc, [sgn], sys */
-	cplx *target = calloc(D, sizeof *target);
-	for (size_t i = 0; i < N; i++) {
-		if (ind) {
-			target[(i << 2) | 0] = x[i] / sqrt(2.0);
-			target[(i << 2) | 2] = x[i] / sqrt(2.0);
-		} else {
-			target[i << 1] = x[i];
-		}
 	}
 	cplx *rho = calloc(D * D, sizeof *rho);
 	double dirty = 0, fid_min = 1;
@@ -295,7 +153,6 @@ static void run_problem(const char *path, const char *const *sets, size_t nsets,
 	free(w);
 	free(rho);
 	free(target);
-	free(x);
 	dw_problem_free(&p);
 }
 
