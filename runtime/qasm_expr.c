@@ -1,8 +1,10 @@
-/* qasm_expr.c - angle and index expressions of the OpenQASM 3 reader.
+/* qasm_expr.c - angle and index expressions, and qubit and bit operands,
+ * of the OpenQASM 3 reader.
  * Takes: tokens at the parser's position and the symbols in scope.
  * Gives: expression nodes in the program's pool (constant sub-trees folded
- * at parse time), their evaluation against a frame of variable slots, and
- * the standalone evaluator dw_angle_expr_eval.
+ * at parse time), their evaluation against a frame of variable slots, the
+ * standalone evaluator dw_angle_expr_eval, and operands (register,
+ * register[index], gate or def argument) with constant indices checked.
  *
  *   expr    := term (('+' | '-') term)*
  *   term    := unary (('*' | '/') unary)*
@@ -215,8 +217,9 @@ static int parse_primary(qx_parser *p, int *out)
 		return qx_error_at(p, t, "expected a numeric value (a qubit, bit or gate name "
 			"cannot be used in arithmetic)");
 	if ((size_t)(s - p->sym) < p->barrier)
-		return qx_error_at(p, t, "expected a gate parameter, loop variable or constant "
-			"(a gate body cannot read outer variables)");
+		return qx_error_at(p, t, "expected a %s parameter, loop variable or constant "
+			"(a %s body cannot read outer variables)", p->in_def ? "def" : "gate",
+			p->in_def ? "def" : "gate");
 	qx_expr n = {QE_SLOT, 0, -1, -1, s->index, 0, t->line, t->col, 0};
 	*out = qx_new_expr(p, &n);
 	return *out < 0 ? p->err->status : DW_OK;
@@ -373,5 +376,114 @@ int dw_angle_expr_eval(const char *text, double *out, dw_error *err)
 		return dw_fail(err, st, "angle '%.200s': %s", text, m);
 	}
 	*out = v;
+	return DW_OK;
+}
+
+/* ---- operands ---- */
+
+/* The register operand o names (a global one, or a def's qubit[n]
+ * argument or local bit register). */
+const dw_qasm_reg *qx_operand_reg(const qx_parser *p, const qx_operand *o, int quantum)
+{
+	if (o->local)
+		return quantum ? &p->in_def->lq[o->reg] : &p->in_def->lbits[o->reg];
+	return quantum ? &p->prog->qregs[o->reg] : &p->prog->cregs[o->reg];
+}
+
+/* After a register name: ['[' expr ']'], a constant index checked against
+ * the register's size (and kept without an expression node). */
+static int parse_index(qx_parser *p, qx_operand *o, int quantum)
+{
+	if (!qx_is(qx_cur(p), "[")) {
+		o->kind = QO_REG;
+		return DW_OK;
+	}
+	p->pos++;
+	const qx_token *it = qx_cur(p);
+	int st = qx_parse_expr(p, &o->index);
+	if (st)
+		return st;
+	const qx_expr *e = &p->prog->ex[o->index];
+	const dw_qasm_reg *r = qx_operand_reg(p, o, quantum);
+	if (e->op == QE_NUM && (e->num != floor(e->num) || e->num < 0 || e->num >= r->size))
+		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an index from 0 to %d "
+			"into '%s' (got %.17g)", p->file, it->line, it->col, r->size - 1,
+			r->name, e->num);
+	if (e->op == QE_NUM && (size_t)o->index + 1 == p->prog->nex) {
+		/* a constant index needs no expression node */
+		o->fixed = (int)e->num;
+		o->index = -1;
+		p->prog->nex--;
+	}
+	if (qx_is(qx_cur(p), ":"))
+		return qx_error_at(p, qx_cur(p), "expected ']' (register slices are not read)");
+	o->kind = QO_ELEM;
+	return qx_expect(p, "]");
+}
+
+/* A qubit operand: name | name '[' expr ']' at the top level, an argument
+ * name inside a gate body, an argument or argument[expr] inside a def
+ * body (which does not see global registers). */
+int qx_parse_qubit(qx_parser *p, qx_operand *o)
+{
+	const qx_token *t = qx_cur(p);
+	o->line = t->line;
+	o->col = t->col;
+	o->index = -1;
+	o->local = 0;
+	const qx_sym *s = t->kind == QT_IDENT ? qx_lookup(p, t->text, t->len) : NULL;
+	if (p->in_gate || (p->in_def && s && s->kind == SY_QARG)) {
+		if (!s || s->kind != SY_QARG)
+			return qx_error_at(p, t, "expected a qubit argument of the gate");
+		p->pos++;
+		if (qx_is(qx_cur(p), "["))
+			return qx_error_at(p, qx_cur(p), "expected ',' or ';' (%s arguments declared "
+				"'qubit' are single qubits and cannot be indexed)", p->in_gate ? "gate" : "def");
+		o->kind = QO_ARG;
+		o->reg = s->index;
+		return DW_OK;
+	}
+	if (p->in_def) {
+		if (s && s->kind == SY_QREG)
+			return qx_error_at(p, t, "expected a qubit argument of the def (global qubit "
+				"registers are not visible inside a def body; pass them as arguments)");
+		if (!s || s->kind != SY_LQREG)
+			return qx_error_at(p, t, "expected a qubit argument of the def");
+		o->local = 1;
+	} else if (!s || s->kind != SY_QREG) {
+		return qx_error_at(p, t, "expected a qubit register");
+	}
+	p->pos++;
+	o->reg = s->index;
+	return parse_index(p, o, 1);
+}
+
+/* A bit operand: name | name '[' expr ']' (inside a def: its local bit
+ * registers only). */
+int qx_parse_bit(qx_parser *p, qx_operand *o)
+{
+	const qx_token *t = qx_cur(p);
+	o->line = t->line;
+	o->col = t->col;
+	o->index = -1;
+	o->local = 0;
+	const qx_sym *s = t->kind == QT_IDENT ? qx_lookup(p, t->text, t->len) : NULL;
+	if (p->in_def && s && s->kind == SY_CREG)
+		return qx_error_at(p, t, "expected a bit register declared in the def (global bit "
+			"registers are not visible inside a def body)");
+	if (!s || (s->kind != SY_CREG && s->kind != SY_LCREG))
+		return qx_error_at(p, t, "expected a bit register");
+	p->pos++;
+	o->reg = s->index;
+	o->local = s->kind == SY_LCREG;
+	return parse_index(p, o, 0);
+}
+
+int qx_push_operand(qx_parser *p, qx_stmt *s, size_t *cap, const qx_operand *o)
+{
+	int st = qx_grow(p, (void **)&s->ops, cap, (size_t)s->nops, sizeof *s->ops);
+	if (st)
+		return st;
+	s->ops[s->nops++] = *o;
 	return DW_OK;
 }

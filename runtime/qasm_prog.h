@@ -4,8 +4,12 @@
  *
  * A program is a tree of statement blocks.  Expressions live in one pool
  * (prog->ex) and are referred to by index; they read numbered variable
- * slots of the current frame (the top level has one frame, each gate call
- * gets a fresh one).  Locations (line, col) are kept for run-time errors. */
+ * slots of the current frame (the top level has one frame, each gate or
+ * def call gets a fresh one).  A `def` is a qx_gatedef with is_def set: its
+ * declared arguments in order (classical values in slots, qubits as
+ * positions in the call's qubit list) and its local bit registers, which
+ * each call gets fresh.  Locations (line, col) are kept for run-time
+ * errors. */
 #ifndef DWELL_QASM_PROG_H
 #define DWELL_QASM_PROG_H
 
@@ -59,6 +63,9 @@ typedef struct qx_expr {
 } qx_expr;
 
 #define QX_MAX_NEST 1000      /* deepest expression, and deepest gate-call chain */
+#define QX_MAX_QUBITS 62      /* amplitude indices and masks are uint64 */
+#define QX_MAX_BITS (1 << 20)
+#define QX_MAX_DEPTH 200      /* nesting of bodies */
 
 /* ---- statements ---- */
 
@@ -66,6 +73,7 @@ enum { QO_REG, QO_ELEM, QO_ARG };          /* whole register, reg[i], gate argum
 
 typedef struct qx_operand {
 	unsigned char kind;
+	unsigned char local;  /* reg indexes the enclosing def's lq (qubits) or lbits */
 	int reg;              /* register index, or argument index for QO_ARG */
 	int index;            /* QO_ELEM: expression, or -1 for the constant `fixed` */
 	int fixed;
@@ -80,7 +88,10 @@ typedef struct qx_mod {
 	int expr;             /* QM_POW: exponent expression */
 } qx_mod;
 
-enum { QS_GATE, QS_GPHASE, QS_FOR, QS_MEASURE, QS_RESET, QS_IF };
+/* QS_CALL: a def call (user = def index, params = its classical arguments
+ * in order, ops = its qubit arguments in order); QS_BITDECL: a local bit
+ * register of a def (slot = its index in lbits) set to zeros. */
+enum { QS_GATE, QS_GPHASE, QS_FOR, QS_MEASURE, QS_RESET, QS_IF, QS_CALL, QS_BITDECL };
 
 typedef struct qx_block {
 	struct qx_stmt *s;
@@ -107,11 +118,28 @@ typedef struct qx_stmt {
 	int cond_not;         /* QS_IF: 1 for != */
 } qx_stmt;
 
+/* A declared argument of a def. */
+enum { QA_VALUE, QA_QUBIT, QA_QREG };
+
+typedef struct qx_defarg {
+	unsigned char kind;
+	int index;            /* QA_VALUE: slot; QA_QUBIT: qubit position; QA_QREG: lq index */
+} qx_defarg;
+
 typedef struct qx_gatedef {
 	char *name;
-	int nparams, nqubits;
+	int nparams, nqubits; /* classical arguments; qubits in all (a qubit[n] counts n) */
 	int nslots;           /* params occupy slots 0..nparams-1 */
 	qx_block body;
+	/* def only */
+	int is_def;
+	int nargs;
+	qx_defarg *args;      /* declared order */
+	dw_qasm_reg *lq;      /* qubit[n] arguments: offset = first position in the call's qubits */
+	size_t nlq;
+	dw_qasm_reg *lbits;   /* local bit registers: offset into the call's bit frame */
+	size_t nlbits;
+	int nbits;            /* size of that frame */
 } qx_gatedef;
 
 /* Built-in gates: U and gphase always; the rest after
@@ -147,7 +175,7 @@ struct dw_qasm_program {
 
 /* ---- parser state shared by qasm_expr.c and qasm_read.c ---- */
 
-enum { SY_SLOT, SY_CONST, SY_QREG, SY_CREG, SY_GATE, SY_QARG };
+enum { SY_SLOT, SY_CONST, SY_QREG, SY_CREG, SY_GATE, SY_QARG, SY_DEF, SY_LQREG, SY_LCREG };
 
 typedef struct qx_sym {
 	const char *name;
@@ -167,6 +195,8 @@ typedef struct qx_parser {
 	size_t nsym, capsym;
 	size_t barrier;       /* symbols below this index are outside the gate body being read */
 	int in_gate;
+	qx_gatedef *in_def;   /* the def whose body is being read, or NULL */
+	const qx_token *def_name;
 	int *nslots;          /* slot counter of the current frame */
 	int have_stdgates;
 	int nest;             /* recursion depth of the expression parser */
@@ -204,5 +234,34 @@ int qx_eval(const dw_qasm_program *prog, int e, const double *vars,
 
 /* Append an expression node; returns its index or -1 (err filled). */
 int qx_new_expr(qx_parser *p, const qx_expr *node);
+
+/* ---- reader internals shared by qasm_read.c and qasm_decl.c ---- */
+
+int qx_expect(qx_parser *p, const char *s);
+char *qx_dup_tok(qx_parser *p, const qx_token *t);
+/* Grow *arr (of *cap elements of size sz) so that index n fits. */
+int qx_grow(qx_parser *p, void **arr, size_t *cap, size_t n, size_t sz);
+int qx_builtin_id(qx_parser *p, const qx_token *t);
+int qx_declare(qx_parser *p, const qx_token *t, int kind, int index, double value);
+int qx_const_int(qx_parser *p, long lo, long hi, const char *what, long *out);
+int qx_designator(qx_parser *p, long lo, long hi, const char *what, long def, long *out);
+void qx_free_stmt(qx_stmt *s);
+void qx_free_block(qx_block *b);
+void qx_free_gatedef(qx_gatedef *d);
+int qx_append(qx_parser *p, qx_block *b, qx_stmt *s);
+const dw_qasm_reg *qx_operand_reg(const qx_parser *p, const qx_operand *o, int quantum);
+int qx_parse_qubit(qx_parser *p, qx_operand *o);
+int qx_parse_bit(qx_parser *p, qx_operand *o);
+int qx_push_operand(qx_parser *p, qx_stmt *s, size_t *cap, const qx_operand *o);
+int qx_parse_statement(qx_parser *p, qx_block *b, int depth);
+int qx_parse_body(qx_parser *p, qx_block **out, int depth);
+/* Declarations (qasm_decl.c); each starts at its first keyword. */
+int qx_parse_register(qx_parser *p, int quantum, int old_style);
+int qx_parse_input(qx_parser *p);
+int qx_parse_const_decl(qx_parser *p);
+int qx_parse_gatedef(qx_parser *p);
+int qx_parse_def(qx_parser *p);
+int qx_parse_local_bits(qx_parser *p, qx_block *b, int old_style);
+int qx_parse_defcall(qx_parser *p, qx_block *b);
 
 #endif

@@ -35,10 +35,6 @@ const qx_builtin qx_builtins[QB_COUNT] = {
 	[QB_U1] = {"u1", 1, 1}, [QB_U2] = {"u2", 2, 1}, [QB_U3] = {"u3", 3, 1},
 };
 
-#define MAX_QUBITS 62         /* amplitude indices and masks are uint64 */
-#define MAX_BITS (1 << 20)
-#define MAX_DEPTH 200         /* nesting of bodies */
-
 static const char *const reserved[] = {
 	"OPENQASM", "include", "qubit", "qreg", "bit", "creg", "input", "output",
 	"const", "gate", "def", "for", "in", "if", "else", "measure", "reset",
@@ -49,11 +45,6 @@ static const char *const reserved[] = {
 	"\xCF\x84", "\xE2\x84\x87", "sin", "cos", "tan", "arcsin", "arccos",
 	"arctan", "exp", "ln", "sqrt",
 };
-
-static const qx_token *cur(qx_parser *p)
-{
-	return qx_cur(p);
-}
 
 /* Append one token from the lexer to the window. */
 static int lex_more(qx_parser *p)
@@ -107,15 +98,15 @@ static int refill(qx_parser *p)
 	return st;
 }
 
-static int expect(qx_parser *p, const char *s)
+int qx_expect(qx_parser *p, const char *s)
 {
-	if (!qx_is(cur(p), s))
-		return qx_error_at(p, cur(p), "expected '%s'", s);
+	if (!qx_is(qx_cur(p), s))
+		return qx_error_at(p, qx_cur(p), "expected '%s'", s);
 	p->pos++;
 	return DW_OK;
 }
 
-static char *dup_tok(qx_parser *p, const qx_token *t)
+char *qx_dup_tok(qx_parser *p, const qx_token *t)
 {
 	char *s = malloc(t->len + 1);
 	if (!s) {
@@ -128,7 +119,7 @@ static char *dup_tok(qx_parser *p, const qx_token *t)
 }
 
 /* Grow *arr (of *cap elements of size sz) so that index n fits. */
-static int grow(qx_parser *p, void **arr, size_t *cap, size_t n, size_t sz)
+int qx_grow(qx_parser *p, void **arr, size_t *cap, size_t n, size_t sz)
 {
 	if (n < *cap)
 		return DW_OK;
@@ -141,7 +132,7 @@ static int grow(qx_parser *p, void **arr, size_t *cap, size_t n, size_t sz)
 	return DW_OK;
 }
 
-static int builtin_id(qx_parser *p, const qx_token *t)
+int qx_builtin_id(qx_parser *p, const qx_token *t)
 {
 	for (int i = 0; i < QB_COUNT; i++)
 		if (qx_is(t, qx_builtins[i].name) && (i <= QB_GPHASE || p->have_stdgates))
@@ -151,7 +142,7 @@ static int builtin_id(qx_parser *p, const qx_token *t)
 
 /* Declare name t as a new symbol; refuses reserved words and names that
  * are already declared in this scope. */
-static int declare(qx_parser *p, const qx_token *t, int kind, int index, double value)
+int qx_declare(qx_parser *p, const qx_token *t, int kind, int index, double value)
 {
 	if (t->kind != QT_IDENT)
 		return qx_error_at(p, t, "expected a name");
@@ -160,14 +151,14 @@ static int declare(qx_parser *p, const qx_token *t, int kind, int index, double 
 			return qx_error_at(p, t, "expected a name that is not a reserved word");
 	/* Parameters, qubit arguments and loop variables may reuse a gate's
 	 * name (stdgates.inc itself names a qubit argument t). */
-	if (kind != SY_SLOT && kind != SY_QARG && builtin_id(p, t) >= 0)
+	if (kind != SY_SLOT && kind != SY_QARG && qx_builtin_id(p, t) >= 0)
 		return qx_error_at(p, t, "expected a name that is not a built-in or standard gate");
 	const qx_sym *old = qx_lookup(p, t->text, t->len);
 	if (old && ((size_t)(old - p->sym) >= p->barrier || old->kind == SY_CONST
-		|| old->kind == SY_GATE))
+		|| old->kind == SY_GATE || old->kind == SY_DEF))
 		return qx_error_at(p, t, "expected a new name ('%.*s' is already declared)",
 			(int)t->len, t->text);
-	int st = grow(p, (void **)&p->sym, &p->capsym, p->nsym, sizeof *p->sym);
+	int st = qx_grow(p, (void **)&p->sym, &p->capsym, p->nsym, sizeof *p->sym);
 	if (st)
 		return st;
 	p->sym[p->nsym++] = (qx_sym){t->text, t->len, kind, index, value};
@@ -175,9 +166,9 @@ static int declare(qx_parser *p, const qx_token *t, int kind, int index, double 
 }
 
 /* A constant non-negative integer in [lo, hi]. */
-static int const_int(qx_parser *p, long lo, long hi, const char *what, long *out)
+int qx_const_int(qx_parser *p, long lo, long hi, const char *what, long *out)
 {
-	const qx_token *t = cur(p);
+	const qx_token *t = qx_cur(p);
 	double v;
 	int st = qx_parse_const(p, &v);
 	if (st)
@@ -189,27 +180,27 @@ static int const_int(qx_parser *p, long lo, long hi, const char *what, long *out
 	return DW_OK;
 }
 
-static void free_block(qx_block *b);
+void qx_free_block(qx_block *b);
 
-static void free_stmt(qx_stmt *s)
+void qx_free_stmt(qx_stmt *s)
 {
 	free(s->mods);
 	free(s->params);
 	free(s->ops);
 	if (s->body) {
-		free_block(s->body);
+		qx_free_block(s->body);
 		free(s->body);
 	}
 	if (s->orelse) {
-		free_block(s->orelse);
+		qx_free_block(s->orelse);
 		free(s->orelse);
 	}
 }
 
-static void free_block(qx_block *b)
+void qx_free_block(qx_block *b)
 {
 	for (size_t i = 0; i < b->n; i++)
-		free_stmt(&b->s[i]);
+		qx_free_stmt(&b->s[i]);
 	free(b->s);
 	b->s = NULL;
 	b->n = b->cap = 0;
@@ -224,146 +215,47 @@ static void *shrink(void *a, size_t n, size_t sz)
 	return r ? r : a;
 }
 
-static int append(qx_parser *p, qx_block *b, qx_stmt *s)
+int qx_append(qx_parser *p, qx_block *b, qx_stmt *s)
 {
 	s->mods = shrink(s->mods, (size_t)s->nmods, sizeof *s->mods);
 	s->params = shrink(s->params, (size_t)s->nparams, sizeof *s->params);
 	s->ops = shrink(s->ops, (size_t)s->nops, sizeof *s->ops);
-	int st = grow(p, (void **)&b->s, &b->cap, b->n, sizeof *b->s);
+	int st = qx_grow(p, (void **)&b->s, &b->cap, b->n, sizeof *b->s);
 	if (st) {
-		free_stmt(s);
+		qx_free_stmt(s);
 		return st;
 	}
 	b->s[b->n++] = *s;
 	return DW_OK;
 }
 
-/* ---- operands ---- */
-
-/* A qubit operand: name | name '[' expr ']' at the top level, an argument
- * name inside a gate body. */
-static int parse_qubit(qx_parser *p, qx_operand *o)
-{
-	const qx_token *t = cur(p);
-	o->line = t->line;
-	o->col = t->col;
-	o->index = -1;
-	const qx_sym *s = t->kind == QT_IDENT ? qx_lookup(p, t->text, t->len) : NULL;
-	if (p->in_gate) {
-		if (!s || s->kind != SY_QARG)
-			return qx_error_at(p, t, "expected a qubit argument of the gate");
-		p->pos++;
-		if (qx_is(cur(p), "["))
-			return qx_error_at(p, cur(p), "expected ',' or ';' (gate arguments are single "
-				"qubits and cannot be indexed)");
-		o->kind = QO_ARG;
-		o->reg = s->index;
-		return DW_OK;
-	}
-	if (!s || s->kind != SY_QREG)
-		return qx_error_at(p, t, "expected a qubit register");
-	p->pos++;
-	o->reg = s->index;
-	if (!qx_is(cur(p), "[")) {
-		o->kind = QO_REG;
-		return DW_OK;
-	}
-	p->pos++;
-	const qx_token *it = cur(p);
-	int st = qx_parse_expr(p, &o->index);
-	if (st)
-		return st;
-	const qx_expr *e = &p->prog->ex[o->index];
-	int size = p->prog->qregs[o->reg].size;
-	if (e->op == QE_NUM && (e->num != floor(e->num) || e->num < 0 || e->num >= size))
-		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an index from 0 to %d "
-			"into '%s' (got %.17g)", p->file, it->line, it->col, size - 1,
-			p->prog->qregs[o->reg].name, e->num);
-	if (e->op == QE_NUM && (size_t)o->index + 1 == p->prog->nex) {
-		/* a constant index needs no expression node */
-		o->fixed = (int)e->num;
-		o->index = -1;
-		p->prog->nex--;
-	}
-	if (qx_is(cur(p), ":"))
-		return qx_error_at(p, cur(p), "expected ']' (register slices are not read)");
-	o->kind = QO_ELEM;
-	return expect(p, "]");
-}
-
-/* A bit operand: name | name '[' expr ']'. */
-static int parse_bit(qx_parser *p, qx_operand *o)
-{
-	const qx_token *t = cur(p);
-	o->line = t->line;
-	o->col = t->col;
-	o->index = -1;
-	const qx_sym *s = t->kind == QT_IDENT ? qx_lookup(p, t->text, t->len) : NULL;
-	if (!s || s->kind != SY_CREG)
-		return qx_error_at(p, t, "expected a bit register");
-	p->pos++;
-	o->reg = s->index;
-	if (!qx_is(cur(p), "[")) {
-		o->kind = QO_REG;
-		return DW_OK;
-	}
-	p->pos++;
-	const qx_token *it = cur(p);
-	int st = qx_parse_expr(p, &o->index);
-	if (st)
-		return st;
-	const qx_expr *e = &p->prog->ex[o->index];
-	int size = p->prog->cregs[o->reg].size;
-	if (e->op == QE_NUM && (e->num != floor(e->num) || e->num < 0 || e->num >= size))
-		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an index from 0 to %d "
-			"into '%s' (got %.17g)", p->file, it->line, it->col, size - 1,
-			p->prog->cregs[o->reg].name, e->num);
-	if (e->op == QE_NUM && (size_t)o->index + 1 == p->prog->nex) {
-		/* a constant index needs no expression node */
-		o->fixed = (int)e->num;
-		o->index = -1;
-		p->prog->nex--;
-	}
-	o->kind = QO_ELEM;
-	return expect(p, "]");
-}
-
-static int push_operand(qx_parser *p, qx_stmt *s, size_t *cap, const qx_operand *o)
-{
-	int st = grow(p, (void **)&s->ops, cap, (size_t)s->nops, sizeof *s->ops);
-	if (st)
-		return st;
-	s->ops[s->nops++] = *o;
-	return DW_OK;
-}
-
 /* ---- statements ---- */
 
-static int parse_statement(qx_parser *p, qx_block *b, int depth);
+int qx_parse_statement(qx_parser *p, qx_block *b, int depth);
 
 /* body := '{' statement* '}' | statement */
-static int parse_body(qx_parser *p, qx_block **out, int depth)
+int qx_parse_body(qx_parser *p, qx_block **out, int depth)
 {
-	if (depth > MAX_DEPTH)
-		return qx_error_at(p, cur(p), "expected at most %d nested blocks", MAX_DEPTH);
+	if (depth > QX_MAX_DEPTH)
+		return qx_error_at(p, qx_cur(p), "expected at most %d nested blocks", QX_MAX_DEPTH);
 	qx_block *b = calloc(1, sizeof *b);
 	if (!b)
 		return dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
 	*out = b;
 	size_t mark = p->nsym;
 	int st = DW_OK;
-	if (qx_is(cur(p), "{")) {
+	if (qx_is(qx_cur(p), "{")) {
 		p->pos++;
-		while (st == DW_OK && !qx_is(cur(p), "}")) {
-			if (cur(p)->kind == QT_EOF)
-				st = qx_error_at(p, cur(p), "expected '}'");
+		while (st == DW_OK && !qx_is(qx_cur(p), "}")) {
+			if (qx_cur(p)->kind == QT_EOF)
+				st = qx_error_at(p, qx_cur(p), "expected '}'");
 			else
-				st = parse_statement(p, b, depth + 1);
+				st = qx_parse_statement(p, b, depth + 1);
 		}
 		if (st == DW_OK)
 			p->pos++;
 	} else {
-		st = parse_statement(p, b, depth + 1);
+		st = qx_parse_statement(p, b, depth + 1);
 	}
 	p->nsym = mark;
 	return st;
@@ -371,7 +263,7 @@ static int parse_body(qx_parser *p, qx_block **out, int depth)
 
 static int parse_gatecall(qx_parser *p, qx_block *b)
 {
-	const qx_token *start = cur(p);
+	const qx_token *start = qx_cur(p);
 	qx_stmt s = {0};
 	s.kind = QS_GATE;
 	s.line = start->line;
@@ -381,7 +273,7 @@ static int parse_gatecall(qx_parser *p, qx_block *b)
 	int ncontrols = 0, st = DW_OK;
 	/* modifiers */
 	for (;;) {
-		const qx_token *t = cur(p);
+		const qx_token *t = qx_cur(p);
 		qx_mod m = {0};
 		m.expr = -1;
 		m.count = 0;
@@ -391,17 +283,17 @@ static int parse_gatecall(qx_parser *p, qx_block *b)
 		} else if (qx_is(t, "pow")) {
 			m.kind = QM_POW;
 			p->pos++;
-			if ((st = expect(p, "(")) || (st = qx_parse_expr(p, &m.expr)) || (st = expect(p, ")")))
+			if ((st = qx_expect(p, "(")) || (st = qx_parse_expr(p, &m.expr)) || (st = qx_expect(p, ")")))
 				goto fail;
 		} else if (qx_is(t, "ctrl") || qx_is(t, "negctrl")) {
 			m.kind = qx_is(t, "ctrl") ? QM_CTRL : QM_NEGCTRL;
 			m.count = 1;
 			p->pos++;
-			if (qx_is(cur(p), "(")) {
+			if (qx_is(qx_cur(p), "(")) {
 				long n;
 				p->pos++;
-				if ((st = const_int(p, 1, MAX_QUBITS, "a number of controls", &n))
-					|| (st = expect(p, ")")))
+				if ((st = qx_const_int(p, 1, QX_MAX_QUBITS, "a number of controls", &n))
+					|| (st = qx_expect(p, ")")))
 					goto fail;
 				m.count = (int)n;
 			}
@@ -409,25 +301,38 @@ static int parse_gatecall(qx_parser *p, qx_block *b)
 		} else {
 			break;
 		}
-		if ((st = expect(p, "@")))
+		if ((st = qx_expect(p, "@")))
 			goto fail;
-		if ((st = grow(p, (void **)&s.mods, &capmods, (size_t)s.nmods, sizeof *s.mods)))
+		if ((st = qx_grow(p, (void **)&s.mods, &capmods, (size_t)s.nmods, sizeof *s.mods)))
 			goto fail;
 		s.mods[s.nmods++] = m;
 	}
 	/* gate name */
-	const qx_token *name = cur(p);
+	const qx_token *name = qx_cur(p);
 	int nparams, nqubits;
 	if (name->kind != QT_IDENT) {
 		st = qx_error_at(p, name, "expected a gate name");
 		goto fail;
 	}
 	const qx_sym *sym = qx_lookup(p, name->text, name->len);
+	if (p->def_name && name->len == p->def_name->len
+		&& !memcmp(name->text, p->def_name->text, name->len)) {
+		st = qx_error_at(p, name, "expected a call of a gate or def declared earlier ('%.*s' "
+			"calls itself; recursion is not read)", (int)name->len, name->text);
+		goto fail;
+	}
+	if (sym && sym->kind == SY_DEF) {
+		st = s.nmods ? qx_error_at(p, name, "expected a gate after the modifiers ('%.*s' is a "
+				"def; ctrl, negctrl, inv and pow apply to gates only)", (int)name->len, name->text)
+			: qx_error_at(p, name, "expected a gate ('%.*s' is a def, and a gate body, being "
+				"unitary, cannot call one)", (int)name->len, name->text);
+		goto fail;
+	}
 	if (sym && sym->kind == SY_GATE) {
 		s.user = sym->index;
 		nparams = p->prog->gates[s.user].nparams;
 		nqubits = p->prog->gates[s.user].nqubits;
-	} else if ((s.builtin = builtin_id(p, name)) >= 0) {
+	} else if ((s.builtin = qx_builtin_id(p, name)) >= 0) {
 		nparams = qx_builtins[s.builtin].nparams;
 		nqubits = qx_builtins[s.builtin].nqubits;
 		if (s.builtin == QB_GPHASE)
@@ -440,20 +345,20 @@ static int parse_gatecall(qx_parser *p, qx_block *b)
 				goto fail;
 			}
 		st = qx_error_at(p, name, s.nmods ? "expected a gate name"
-			: "expected a statement (a declaration, gate call, for, if, measure or reset)");
+			: "expected a statement (a declaration, gate or def call, for, if, measure or reset)");
 		goto fail;
 	}
 	p->pos++;
 	/* parameters */
-	if (qx_is(cur(p), "(")) {
+	if (qx_is(qx_cur(p), "(")) {
 		p->pos++;
-		while (!qx_is(cur(p), ")")) {
+		while (!qx_is(qx_cur(p), ")")) {
 			int e;
-			if (s.nparams && (st = expect(p, ",")))
+			if (s.nparams && (st = qx_expect(p, ",")))
 				goto fail;
 			if ((st = qx_parse_expr(p, &e)))
 				goto fail;
-			if ((st = grow(p, (void **)&s.params, &cappar, (size_t)s.nparams, sizeof *s.params)))
+			if ((st = qx_grow(p, (void **)&s.params, &cappar, (size_t)s.nparams, sizeof *s.params)))
 				goto fail;
 			s.params[s.nparams++] = e;
 		}
@@ -466,11 +371,11 @@ static int parse_gatecall(qx_parser *p, qx_block *b)
 		goto fail;
 	}
 	/* operands */
-	while (!qx_is(cur(p), ";")) {
+	while (!qx_is(qx_cur(p), ";")) {
 		qx_operand o;
-		if (s.nops && (st = expect(p, ",")))
+		if (s.nops && (st = qx_expect(p, ",")))
 			goto fail;
-		if ((st = parse_qubit(p, &o)) || (st = push_operand(p, &s, &capops, &o)))
+		if ((st = qx_parse_qubit(p, &o)) || (st = qx_push_operand(p, &s, &capops, &o)))
 			goto fail;
 	}
 	p->pos++;
@@ -481,9 +386,9 @@ static int parse_gatecall(qx_parser *p, qx_block *b)
 			ncontrols ? " with its controls" : "", s.nops);
 		goto fail;
 	}
-	return append(p, b, &s);
+	return qx_append(p, b, &s);
 fail:
-	free_stmt(&s);
+	qx_free_stmt(&s);
 	return st;
 }
 
@@ -491,80 +396,80 @@ fail:
 static int parse_for(qx_parser *p, qx_block *b, int depth)
 {
 	qx_stmt s = {0};
-	const qx_token *t = cur(p);
+	const qx_token *t = qx_cur(p);
 	s.kind = QS_FOR;
 	s.line = t->line;
 	s.col = t->col;
 	s.builtin = s.user = -1;
 	p->pos++;
 	int st = DW_OK;
-	if (qx_is(cur(p), "int") || qx_is(cur(p), "uint")) {
+	if (qx_is(qx_cur(p), "int") || qx_is(qx_cur(p), "uint")) {
 		p->pos++;
-		if (qx_is(cur(p), "[")) {
+		if (qx_is(qx_cur(p), "[")) {
 			long w;
 			p->pos++;
-			if ((st = const_int(p, 1, 64, "an integer width", &w)) || (st = expect(p, "]")))
+			if ((st = qx_const_int(p, 1, 64, "an integer width", &w)) || (st = qx_expect(p, "]")))
 				return st;
 		}
 	}
-	const qx_token *var = cur(p);
+	const qx_token *var = qx_cur(p);
 	if (var->kind != QT_IDENT)
 		return qx_error_at(p, var, "expected a loop variable name");
 	p->pos++;
-	if ((st = expect(p, "in")))
+	if ((st = qx_expect(p, "in")))
 		return st;
-	if (qx_is(cur(p), "{"))
-		return qx_error_at(p, cur(p), "expected '[' (loops over sets are not read; use a range "
+	if (qx_is(qx_cur(p), "{"))
+		return qx_error_at(p, qx_cur(p), "expected '[' (loops over sets are not read; use a range "
 			"[a:b] or [a:step:b])");
-	if ((st = expect(p, "[")) || (st = qx_parse_expr(p, &s.start)) || (st = expect(p, ":"))
+	if ((st = qx_expect(p, "[")) || (st = qx_parse_expr(p, &s.start)) || (st = qx_expect(p, ":"))
 		|| (st = qx_parse_expr(p, &s.stop)))
 		return st;
 	s.step = -1;
-	if (qx_is(cur(p), ":")) {
+	if (qx_is(qx_cur(p), ":")) {
 		p->pos++;
 		s.step = s.stop;
 		if ((st = qx_parse_expr(p, &s.stop)))
 			return st;
 	}
-	if ((st = expect(p, "]")))
+	if ((st = qx_expect(p, "]")))
 		return st;
 	size_t mark = p->nsym;
 	s.slot = (*p->nslots)++;
-	if ((st = declare(p, var, SY_SLOT, s.slot, 0)))
+	if ((st = qx_declare(p, var, SY_SLOT, s.slot, 0)))
 		return st;
-	st = parse_body(p, &s.body, depth);
+	st = qx_parse_body(p, &s.body, depth);
 	p->nsym = mark;
 	if (st) {
-		free_stmt(&s);
+		qx_free_stmt(&s);
 		return st;
 	}
-	return append(p, b, &s);
+	return qx_append(p, b, &s);
 }
 
 /* if '(' bit-operand [('==' | '!=') expr] ')' body ['else' body] ; also '!' bits */
 static int parse_if(qx_parser *p, qx_block *b, int depth)
 {
 	qx_stmt s = {0};
-	const qx_token *t = cur(p);
+	const qx_token *t = qx_cur(p);
 	s.kind = QS_IF;
 	s.line = t->line;
 	s.col = t->col;
 	s.builtin = s.user = -1;
 	size_t capops = 0;
 	p->pos++;
-	int st = expect(p, "(");
+	int st = qx_expect(p, "(");
 	if (st)
 		return st;
 	int negate = 0;
-	if (qx_is(cur(p), "!")) {
+	if (qx_is(qx_cur(p), "!")) {
 		negate = 1;
 		p->pos++;
 	}
 	qx_operand o;
-	if ((st = parse_bit(p, &o)) || (st = push_operand(p, &s, &capops, &o)))
+	if ((st = qx_parse_bit(p, &o)) || (st = qx_push_operand(p, &s, &capops, &o)))
 		goto fail;
-	if (!negate && (qx_is(cur(p), "==") || qx_is(cur(p), "!="))) {
-		s.cond_not = qx_is(cur(p), "!=");
+	if (!negate && (qx_is(qx_cur(p), "==") || qx_is(qx_cur(p), "!="))) {
+		s.cond_not = qx_is(qx_cur(p), "!=");
 		p->pos++;
 		if ((st = qx_parse_expr(p, &s.cond_value)))
 			goto fail;
@@ -578,16 +483,16 @@ static int parse_if(qx_parser *p, qx_block *b, int depth)
 		}
 		s.cond_not = !negate;
 	}
-	if ((st = expect(p, ")")) || (st = parse_body(p, &s.body, depth)))
+	if ((st = qx_expect(p, ")")) || (st = qx_parse_body(p, &s.body, depth)))
 		goto fail;
-	if (qx_is(cur(p), "else")) {
+	if (qx_is(qx_cur(p), "else")) {
 		p->pos++;
-		if ((st = parse_body(p, &s.orelse, depth)))
+		if ((st = qx_parse_body(p, &s.orelse, depth)))
 			goto fail;
 	}
-	return append(p, b, &s);
+	return qx_append(p, b, &s);
 fail:
-	free_stmt(&s);
+	qx_free_stmt(&s);
 	return st;
 }
 
@@ -595,7 +500,7 @@ fail:
 static int parse_measure(qx_parser *p, qx_block *b, int assign)
 {
 	qx_stmt s = {0};
-	const qx_token *t = cur(p);
+	const qx_token *t = qx_cur(p);
 	s.kind = QS_MEASURE;
 	s.line = t->line;
 	s.col = t->col;
@@ -604,42 +509,42 @@ static int parse_measure(qx_parser *p, qx_block *b, int assign)
 	qx_operand q, c;
 	int st, have_bit = 0;
 	if (assign) {
-		if ((st = parse_bit(p, &c)) || (st = expect(p, "=")) || (st = expect(p, "measure")))
+		if ((st = qx_parse_bit(p, &c)) || (st = qx_expect(p, "=")) || (st = qx_expect(p, "measure")))
 			return st;
 		have_bit = 1;
 	} else {
 		p->pos++;
 	}
-	if ((st = parse_qubit(p, &q)))
+	if ((st = qx_parse_qubit(p, &q)))
 		return st;
-	if (!assign && qx_is(cur(p), "->")) {
+	if (!assign && qx_is(qx_cur(p), "->")) {
 		p->pos++;
-		if ((st = parse_bit(p, &c)))
+		if ((st = qx_parse_bit(p, &c)))
 			return st;
 		have_bit = 1;
 	}
-	if ((st = expect(p, ";")))
+	if ((st = qx_expect(p, ";")))
 		return st;
 	if (have_bit && (q.kind == QO_REG) != (c.kind == QO_REG))
 		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected a single qubit with a single "
 			"bit, or a register with a bit register", p->file, t->line, t->col);
-	if (have_bit && q.kind == QO_REG
-		&& p->prog->qregs[q.reg].size != p->prog->cregs[c.reg].size)
+	const dw_qasm_reg *qr = q.kind == QO_REG ? qx_operand_reg(p, &q, 1) : NULL;
+	const dw_qasm_reg *cr = have_bit && c.kind == QO_REG ? qx_operand_reg(p, &c, 0) : NULL;
+	if (qr && cr && qr->size != cr->size)
 		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected registers of equal size "
 			"('%s' has %d qubits, '%s' %d bits)", p->file, t->line, t->col,
-			p->prog->qregs[q.reg].name, p->prog->qregs[q.reg].size,
-			p->prog->cregs[c.reg].name, p->prog->cregs[c.reg].size);
-	if ((st = push_operand(p, &s, &capops, &q)) || (have_bit && (st = push_operand(p, &s, &capops, &c)))) {
-		free_stmt(&s);
+			qr->name, qr->size, cr->name, cr->size);
+	if ((st = qx_push_operand(p, &s, &capops, &q)) || (have_bit && (st = qx_push_operand(p, &s, &capops, &c)))) {
+		qx_free_stmt(&s);
 		return st;
 	}
-	return append(p, b, &s);
+	return qx_append(p, b, &s);
 }
 
 static int parse_reset(qx_parser *p, qx_block *b)
 {
 	qx_stmt s = {0};
-	const qx_token *t = cur(p);
+	const qx_token *t = qx_cur(p);
 	s.kind = QS_RESET;
 	s.line = t->line;
 	s.col = t->col;
@@ -647,16 +552,16 @@ static int parse_reset(qx_parser *p, qx_block *b)
 	size_t capops = 0;
 	qx_operand q;
 	p->pos++;
-	int st = parse_qubit(p, &q);
+	int st = qx_parse_qubit(p, &q);
 	if (st == DW_OK)
-		st = expect(p, ";");
+		st = qx_expect(p, ";");
 	if (st == DW_OK)
-		st = push_operand(p, &s, &capops, &q);
+		st = qx_push_operand(p, &s, &capops, &q);
 	if (st) {
-		free_stmt(&s);
+		qx_free_stmt(&s);
 		return st;
 	}
-	return append(p, b, &s);
+	return qx_append(p, b, &s);
 }
 
 /* barrier [operands] ;  -- no effect on a simulation, read and dropped */
@@ -664,250 +569,31 @@ static int parse_barrier(qx_parser *p)
 {
 	p->pos++;
 	int n = 0;
-	while (!qx_is(cur(p), ";")) {
+	while (!qx_is(qx_cur(p), ";")) {
 		qx_operand o;
 		int st;
-		if (n++ && (st = expect(p, ",")))
+		if (n++ && (st = qx_expect(p, ",")))
 			return st;
-		if ((st = parse_qubit(p, &o)))
+		if ((st = qx_parse_qubit(p, &o)))
 			return st;
 	}
 	p->pos++;
 	return DW_OK;
 }
 
-/* ---- declarations (top level only) ---- */
-
-/* Optional '[' const ']' designator; gives def when absent. */
-static int designator(qx_parser *p, long lo, long hi, const char *what, long def, long *out)
-{
-	*out = def;
-	if (!qx_is(cur(p), "["))
-		return DW_OK;
-	p->pos++;
-	int st = const_int(p, lo, hi, what, out);
-	return st ? st : expect(p, "]");
-}
-
-static int add_reg(qx_parser *p, const qx_token *name, int quantum, long size)
-{
-	dw_qasm_program *g = p->prog;
-	long total = quantum ? g->nqubits : g->nbits;
-	long limit = quantum ? MAX_QUBITS : MAX_BITS;
-	if (total + size > limit)
-		return qx_error_at(p, name, "expected at most %ld %s in all", limit,
-			quantum ? "qubits" : "bits");
-	size_t *n = quantum ? &g->nqregs : &g->ncregs;
-	dw_qasm_reg **regs = quantum ? &g->qregs : &g->cregs;
-	dw_qasm_reg *r = realloc(*regs, (*n + 1) * sizeof *r);
-	if (!r)
-		return dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
-	*regs = r;
-	int st = declare(p, name, quantum ? SY_QREG : SY_CREG, (int)*n, 0);
-	if (st)
-		return st;
-	char *s = dup_tok(p, name);
-	if (!s)
-		return p->err->status;
-	r[*n] = (dw_qasm_reg){s, (int)total, (int)size};
-	(*n)++;
-	if (quantum)
-		g->nqubits += (int)size;
-	else
-		g->nbits += (int)size;
-	return DW_OK;
-}
-
-/* qubit[n] name;  qubit name;  qreg name[n];  bit[n] name;  creg name[n]; */
-static int parse_register(qx_parser *p, int quantum, int old_style)
-{
-	long size = 1;
-	int st;
-	p->pos++;
-	const qx_token *name;
-	long hi = quantum ? MAX_QUBITS : MAX_BITS;
-	if (old_style) {
-		name = cur(p);
-		if (name->kind != QT_IDENT)
-			return qx_error_at(p, name, "expected a register name");
-		p->pos++;
-		if ((st = designator(p, 1, hi, "a register size", 1, &size)))
-			return st;
-	} else {
-		if ((st = designator(p, 1, hi, "a register size", 1, &size)))
-			return st;
-		name = cur(p);
-		p->pos++;
-	}
-	if ((st = add_reg(p, name, quantum, size)))
-		return st;
-	if (qx_is(cur(p), "="))
-		return qx_error_at(p, cur(p), "expected ';' (initialisers are not read)");
-	return expect(p, ";");
-}
-
-/* input float[64] x;  input angle[32] x;  input float x; */
-static int parse_input(qx_parser *p)
-{
-	p->pos++;
-	const qx_token *type = cur(p);
-	int is_angle = qx_is(type, "angle");
-	if (!is_angle && !qx_is(type, "float"))
-		return qx_error_at(p, type, "expected 'float' or 'angle' (the only input types read)");
-	p->pos++;
-	long width;
-	int st = designator(p, 1, 128, "a type width", 64, &width);
-	if (st)
-		return st;
-	const qx_token *name = cur(p);
-	dw_qasm_program *g = p->prog;
-	dw_qasm_input *in = realloc(g->inputs, (g->ninputs + 1) * sizeof *in);
-	if (!in)
-		return dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
-	g->inputs = in;
-	int slot = (*p->nslots)++;
-	if ((st = declare(p, name, SY_SLOT, slot, 0)))
-		return st;
-	char *s = dup_tok(p, name);
-	if (!s)
-		return p->err->status;
-	in[g->ninputs++] = (dw_qasm_input){s, is_angle, slot};
-	p->pos++;
-	return expect(p, ";");
-}
-
-/* const (int|uint|float|angle)['[' n ']'] name = const-expr ; */
-static int parse_const_decl(qx_parser *p)
-{
-	p->pos++;
-	const qx_token *type = cur(p);
-	int integral = qx_is(type, "int") || qx_is(type, "uint");
-	long width;
-	int st;
-	if (type->kind == QT_IDENT && qx_is(&p->tok[p->pos + 1 < p->ntok ? p->pos + 1 : p->pos], "=")) {
-		integral = 0;   /* `const name = value;` without a type (early drafts) */
-	} else {
-		if (!integral && !qx_is(type, "float") && !qx_is(type, "angle"))
-			return qx_error_at(p, type, "expected 'int', 'uint', 'float' or 'angle'");
-		p->pos++;
-		if ((st = designator(p, 1, 128, "a type width", 64, &width)))
-			return st;
-	}
-	const qx_token *name = cur(p);
-	p->pos++;
-	if ((st = expect(p, "=")))
-		return st;
-	const qx_token *vt = cur(p);
-	double v;
-	if ((st = qx_parse_const(p, &v)))
-		return st;
-	if (integral && (v != floor(v) || (qx_is(type, "uint") && v < 0)))
-		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected an integer value for '%.*s' "
-			"(got %.17g)", p->file, vt->line, vt->col, (int)name->len, name->text, v);
-	if ((st = declare(p, name, SY_CONST, 0, v)))
-		return st;
-	return expect(p, ";");
-}
-
-/* gate name ['(' params ')'] qargs '{' body '}' */
-static int parse_gatedef(qx_parser *p)
-{
-	p->pos++;
-	const qx_token *name = cur(p);
-	if (name->kind != QT_IDENT)
-		return qx_error_at(p, name, "expected a gate name");
-	const qx_sym *old = qx_lookup(p, name->text, name->len);
-	if (old)
-		return qx_error_at(p, name, "expected a new gate name ('%.*s' is already declared)",
-			(int)name->len, name->text);
-	if (builtin_id(p, name) >= 0)
-		return qx_error_at(p, name, "expected a new gate name (this one is built in or "
-			"in stdgates.inc)");
-	p->pos++;
-	qx_gatedef d = {0};
-	size_t barrier = p->barrier, mark = p->nsym;
-	int *nslots = p->nslots;
-	p->barrier = p->nsym;
-	p->in_gate = 1;
-	p->nslots = &d.nslots;
-	int st = DW_OK;
-	if (qx_is(cur(p), "(")) {
-		p->pos++;
-		while (st == DW_OK && !qx_is(cur(p), ")")) {
-			if (d.nparams && (st = expect(p, ",")))
-				break;
-			const qx_token *pn = cur(p);
-			if ((st = declare(p, pn, SY_SLOT, d.nparams, 0)))
-				break;
-			p->pos++;
-			d.nparams++;
-			d.nslots++;
-		}
-		if (st == DW_OK)
-			p->pos++;
-	}
-	while (st == DW_OK && !qx_is(cur(p), "{")) {
-		if (d.nqubits && (st = expect(p, ",")))
-			break;
-		const qx_token *qn = cur(p);
-		if ((st = declare(p, qn, SY_QARG, d.nqubits, 0)))
-			break;
-		p->pos++;
-		if (++d.nqubits > MAX_QUBITS)
-			st = qx_error_at(p, qn, "expected at most %d qubit arguments", MAX_QUBITS);
-	}
-	if (st == DW_OK && d.nqubits == 0)
-		st = qx_error_at(p, cur(p), "expected at least one qubit argument");
-	if (st == DW_OK) {
-		p->pos++;
-		while (st == DW_OK && !qx_is(cur(p), "}")) {
-			if (cur(p)->kind == QT_EOF)
-				st = qx_error_at(p, cur(p), "expected '}'");
-			else
-				st = parse_statement(p, &d.body, 1);
-		}
-		if (st == DW_OK)
-			p->pos++;
-	}
-	p->nsym = mark;
-	p->barrier = barrier;
-	p->in_gate = 0;
-	p->nslots = nslots;
-	dw_qasm_program *g = p->prog;
-	qx_gatedef *gs = NULL;
-	if (st == DW_OK) {
-		gs = realloc(g->gates, (g->ngates + 1) * sizeof *gs);
-		if (!gs)
-			st = dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
-	}
-	if (st == DW_OK) {
-		g->gates = gs;
-		d.name = dup_tok(p, name);
-		if (!d.name)
-			st = p->err->status;
-	}
-	if (st == DW_OK)
-		st = declare(p, name, SY_GATE, (int)g->ngates, 0);
-	if (st) {
-		free(d.name);
-		free_block(&d.body);
-		return st;
-	}
-	g->gates[g->ngates++] = d;
-	return DW_OK;
-}
 
 static int top_level_only(qx_parser *p, int depth)
 {
-	if (depth > 0 || p->in_gate)
-		return qx_error_at(p, cur(p), "expected a gate call, for, if, measure or reset "
-			"(declarations are read only at the top level)");
+	if (depth > 0 || p->in_gate || p->in_def)
+		return qx_error_at(p, qx_cur(p), "expected a gate or def call, for, if, measure or "
+			"reset (declarations other than a def's local bits are read only at the top "
+			"level)");
 	return DW_OK;
 }
 
-static int parse_statement(qx_parser *p, qx_block *b, int depth)
+int qx_parse_statement(qx_parser *p, qx_block *b, int depth)
 {
-	const qx_token *t = cur(p);
+	const qx_token *t = qx_cur(p);
 	int st;
 	if (p->in_gate) {
 		if (qx_is(t, "for"))
@@ -925,41 +611,51 @@ static int parse_statement(qx_parser *p, qx_block *b, int depth)
 		if ((st = top_level_only(p, depth)))
 			return st;
 		p->pos++;
-		const qx_token *f = cur(p);
+		const qx_token *f = qx_cur(p);
 		if (f->kind != QT_STRING || f->len != 14 || memcmp(f->text, "\"stdgates.inc\"", 14))
 			return qx_error_at(p, f, "expected \"stdgates.inc\" (the only include file read)");
 		p->pos++;
 		p->have_stdgates = 1;
-		return expect(p, ";");
+		return qx_expect(p, ";");
 	}
+	if (p->in_def && (qx_is(t, "qubit") || qx_is(t, "qreg")))
+		return qx_error_at(p, t, "expected a statement of the def body (qubits are global "
+			"and cannot be declared in a def; pass them as arguments)");
+	if (p->in_def && (qx_is(t, "bit") || qx_is(t, "creg")))
+		return qx_parse_local_bits(p, b, qx_is(t, "creg"));
 	if (qx_is(t, "qubit") || qx_is(t, "qreg") || qx_is(t, "bit") || qx_is(t, "creg")) {
 		if ((st = top_level_only(p, depth)))
 			return st;
-		return parse_register(p, qx_is(t, "qubit") || qx_is(t, "qreg"),
+		return qx_parse_register(p, qx_is(t, "qubit") || qx_is(t, "qreg"),
 			qx_is(t, "qreg") || qx_is(t, "creg"));
 	}
 	if (qx_is(t, "output")) {
 		if ((st = top_level_only(p, depth)))
 			return st;
 		p->pos++;
-		if (!qx_is(cur(p), "bit"))
-			return qx_error_at(p, cur(p), "expected 'bit' after 'output'");
-		return parse_register(p, 0, 0);
+		if (!qx_is(qx_cur(p), "bit"))
+			return qx_error_at(p, qx_cur(p), "expected 'bit' after 'output'");
+		return qx_parse_register(p, 0, 0);
 	}
 	if (qx_is(t, "input")) {
 		if ((st = top_level_only(p, depth)))
 			return st;
-		return parse_input(p);
+		return qx_parse_input(p);
 	}
 	if (qx_is(t, "const")) {
 		if ((st = top_level_only(p, depth)))
 			return st;
-		return parse_const_decl(p);
+		return qx_parse_const_decl(p);
 	}
 	if (qx_is(t, "gate")) {
 		if ((st = top_level_only(p, depth)))
 			return st;
-		return parse_gatedef(p);
+		return qx_parse_gatedef(p);
+	}
+	if (qx_is(t, "def")) {
+		if ((st = top_level_only(p, depth)))
+			return st;
+		return qx_parse_def(p);
 	}
 	if (qx_is(t, "for"))
 		return parse_for(p, b, depth);
@@ -973,8 +669,10 @@ static int parse_statement(qx_parser *p, qx_block *b, int depth)
 		return parse_barrier(p);
 	if (t->kind == QT_IDENT) {
 		const qx_sym *s = qx_lookup(p, t->text, t->len);
-		if (s && s->kind == SY_CREG)
+		if (s && (s->kind == SY_CREG || s->kind == SY_LCREG))
 			return parse_measure(p, b, 1);
+		if (s && s->kind == SY_DEF)
+			return qx_parse_defcall(p, b);
 	}
 	return parse_gatecall(p, b);
 }
@@ -990,15 +688,13 @@ void dw_qasm_free(dw_qasm_program *g)
 		free(g->cregs[i].name);
 	for (size_t i = 0; i < g->ninputs; i++)
 		free(g->inputs[i].name);
-	for (size_t i = 0; i < g->ngates; i++) {
-		free(g->gates[i].name);
-		free_block(&g->gates[i].body);
-	}
+	for (size_t i = 0; i < g->ngates; i++)
+		qx_free_gatedef(&g->gates[i]);
 	free(g->qregs);
 	free(g->cregs);
 	free(g->inputs);
 	free(g->gates);
-	free_block(&g->main);
+	qx_free_block(&g->main);
 	free(g->ex);
 	free(g);
 }
@@ -1022,18 +718,18 @@ int dw_qasm_parse_string(const char *text, const char *name, dw_qasm_program **o
 	p.nslots = &g->nslots;
 	qx_lexer_init(&p.lex, text, name, err);
 	int st = refill(&p);
-	if (st == DW_OK && qx_is(cur(&p), "OPENQASM")) {
+	if (st == DW_OK && qx_is(qx_cur(&p), "OPENQASM")) {
 		const qx_token *v = &p.tok[++p.pos];
 		if ((v->kind != QT_INT && v->kind != QT_FLOAT) || v->num < 3 || v->num >= 4)
 			st = qx_error_at(&p, v, "expected version 3 or 3.x (OpenQASM 2 programs are not "
 				"read: their U and gate library differ)");
 		else {
 			p.pos++;
-			st = expect(&p, ";");
+			st = qx_expect(&p, ";");
 		}
 	}
-	while (st == DW_OK && (st = refill(&p)) == DW_OK && cur(&p)->kind != QT_EOF)
-		st = parse_statement(&p, &g->main, 0);
+	while (st == DW_OK && (st = refill(&p)) == DW_OK && qx_cur(&p)->kind != QT_EOF)
+		st = qx_parse_statement(&p, &g->main, 0);
 	free(p.tok);
 	free(p.sym);
 	if (st) {

@@ -9,7 +9,9 @@
  * gate becomes one kernel call with its exact matrix; a user gate runs its
  * body in a new frame, backwards and with every gate inverted when the
  * direction is inverted.  gphase multiplies the amplitudes that satisfy
- * the current controls. */
+ * the current controls.  A def call (never under modifiers) resolves its
+ * qubit arguments, runs its body with fresh variable slots and a fresh,
+ * zeroed frame of local bits; measure, reset and if in it act on those. */
 #include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
@@ -30,7 +32,9 @@ typedef struct exec {
 	dw_error *err;
 	double *vars;             /* frames of variable slots */
 	size_t nvars, capvars;
-	int depth;                /* nesting of user gate calls */
+	int depth;                /* nesting of user gate and def calls */
+	unsigned char *lbits;     /* frames of def-local bits */
+	size_t nlbits, caplbits;
 } exec;
 
 static int fail_at(exec *x, long line, long col, const char *fmt, ...)
@@ -162,15 +166,26 @@ static int builtin_matrix(int id, const double *p, double complex m[4])
 
 /* ---- execution ---- */
 
-static int exec_block(exec *x, const qx_block *b, size_t vb, const int *qargs, ctx c);
+/* Where a statement runs: its variable frame, the qubits of the gate or def
+ * whose body it is in, and for a def body the def and its bit frame. */
+typedef struct scope {
+	size_t vb;
+	const int *qargs;
+	const qx_gatedef *def;
+	size_t bb;                /* local bits of def at x->lbits[bb ...] */
+} scope;
+
+static int exec_block(exec *x, const qx_block *b, const scope *sc, ctx c);
 
 /* The base gate of a call (after its modifiers) on qubits q. */
 static int apply_gate(exec *x, const qx_stmt *s, const int *q, const double *par,
 	size_t frame, ctx c)
 {
 	dw_state *st = x->st;
-	if (s->user >= 0)
-		return exec_block(x, &x->prog->gates[s->user].body, frame, q, c);
+	if (s->user >= 0) {
+		scope body = {frame, q, NULL, 0};
+		return exec_block(x, &x->prog->gates[s->user].body, &body, c);
+	}
 	switch (s->builtin) {
 	case QB_GPHASE:
 		dw_state_apply_phase(st, cexp(I * (c.inv ? -par[0] : par[0])), c.cmask, c.cval);
@@ -239,20 +254,29 @@ static int apply_mods(exec *x, const qx_stmt *s, int mi, const int *q, const dou
 	}
 }
 
+/* Are the n qubits q distinct from each other and from the controls in
+ * mask? */
+static int distinct(exec *x, const qx_stmt *s, const int *q, int n, uint64_t mask,
+	const char *what)
+{
+	for (int i = 0; i < n; i++) {
+		uint64_t b = (uint64_t)1 << q[i];
+		if (mask & b)
+			return fail_at(x, s->line, s->col, "expected distinct qubits (qubit %d is %s)",
+				q[i], what);
+		mask |= b;
+	}
+	return DW_OK;
+}
+
 /* One call on concrete qubits q (controls first). */
 static int apply_call(exec *x, const qx_stmt *s, const int *q, size_t vb, ctx c)
 {
-	uint64_t seen = c.cmask;
-	for (int i = 0; i < s->nops; i++) {
-		uint64_t b = (uint64_t)1 << q[i];
-		if (seen & b)
-			return fail_at(x, s->line, s->col, "expected distinct qubits (qubit %d is "
-				"used twice, or is also a control)", q[i]);
-		seen |= b;
-	}
+	int st = distinct(x, s, q, s->nops, c.cmask, "used twice, or is also a control");
+	if (st)
+		return st;
 	double par[4] = {0};
 	size_t frame = 0;
-	int st = DW_OK;
 	if (s->user >= 0) {
 		const qx_gatedef *d = &x->prog->gates[s->user];
 		if (x->depth >= QX_MAX_NEST)
@@ -279,15 +303,20 @@ static int apply_call(exec *x, const qx_stmt *s, const int *q, size_t vb, ctx c)
 	return st;
 }
 
-/* Qubit of a single-qubit operand (element j of a whole register). */
-static int resolve(exec *x, const qx_operand *o, const dw_qasm_reg *regs, size_t vb,
-	const int *qargs, long long j, int *out)
+/* The register an operand names: global, or a def's qubit[n] argument or
+ * local bit register. */
+static const dw_qasm_reg *op_reg(const exec *x, const scope *sc, const qx_operand *o,
+	int quantum)
 {
-	if (o->kind == QO_ARG) {
-		*out = qargs[o->reg];
-		return DW_OK;
-	}
-	const dw_qasm_reg *r = &regs[o->reg];
+	if (o->local)
+		return quantum ? &sc->def->lq[o->reg] : &sc->def->lbits[o->reg];
+	return quantum ? &x->prog->qregs[o->reg] : &x->prog->cregs[o->reg];
+}
+
+/* Position within the register of element j of operand o. */
+static int op_index(exec *x, const qx_operand *o, const dw_qasm_reg *r, size_t vb,
+	long long j, int *out)
+{
 	long long i = j;
 	if (o->kind == QO_ELEM && o->index < 0) {
 		i = o->fixed;      /* checked when read */
@@ -299,20 +328,45 @@ static int resolve(exec *x, const qx_operand *o, const dw_qasm_reg *regs, size_t
 			return fail_at(x, o->line, o->col, "expected an index from 0 to %d into "
 				"'%s', got %lld", r->size - 1, r->name, i);
 	}
-	*out = r->offset + (int)i;
+	*out = (int)i;
 	return DW_OK;
 }
 
+/* Qubit of a single-qubit operand (element j of a whole register). */
+static int resolve(exec *x, const qx_operand *o, const scope *sc, long long j, int *out)
+{
+	if (o->kind == QO_ARG) {
+		*out = sc->qargs[o->reg];
+		return DW_OK;
+	}
+	const dw_qasm_reg *r = op_reg(x, sc, o, 1);
+	int i, st = op_index(x, o, r, sc->vb, j, &i);
+	if (st == DW_OK)
+		*out = o->local ? sc->qargs[r->offset + i] : r->offset + i;
+	return st;
+}
+
+/* The stored bit of a bit operand (element j of a whole register). */
+static int resolve_bit(exec *x, const qx_operand *o, const scope *sc, long long j,
+	unsigned char **out)
+{
+	const dw_qasm_reg *r = op_reg(x, sc, o, 0);
+	int i, st = op_index(x, o, r, sc->vb, j, &i);
+	if (st == DW_OK)
+		*out = o->local ? &x->lbits[sc->bb + (size_t)(r->offset + i)]
+			: &x->st->bits[r->offset + i];
+	return st;
+}
+
 /* Broadcast length of the operands: 0 when all are single qubits/bits. */
-static int broadcast(exec *x, const qx_stmt *s, int nops, const dw_qasm_reg *qregs,
-	const dw_qasm_reg *cregs, int with_bit, int *len)
+static int broadcast(exec *x, const qx_stmt *s, const scope *sc, int with_bit, int *len)
 {
 	*len = 0;
-	for (int i = 0; i < nops; i++) {
+	for (int i = 0; i < s->nops; i++) {
 		const qx_operand *o = &s->ops[i];
 		if (o->kind != QO_REG)
 			continue;
-		int size = (with_bit && i == nops - 1 ? cregs : qregs)[o->reg].size;
+		int size = op_reg(x, sc, o, !(with_bit && i == s->nops - 1))->size;
 		if (*len && size != *len)
 			return fail_at(x, o->line, o->col, "expected registers of equal size in one "
 				"statement (%d and %d)", *len, size);
@@ -321,24 +375,91 @@ static int broadcast(exec *x, const qx_stmt *s, int nops, const dw_qasm_reg *qre
 	return DW_OK;
 }
 
-static int exec_gate_stmt(exec *x, const qx_stmt *s, size_t vb, const int *qargs, ctx c)
+static int exec_gate_stmt(exec *x, const qx_stmt *s, const scope *sc, ctx c)
 {
 	int q[64];
 	if (s->nops > 64)
 		return fail_at(x, s->line, s->col, "expected at most 64 qubit operands");
-	int len, st = broadcast(x, s, s->nops, x->prog->qregs, NULL, 0, &len);
+	int len, st = broadcast(x, s, sc, 0, &len);
 	for (int j = 0; st == DW_OK && j < (len ? len : 1); j++) {
 		for (int i = 0; i < s->nops && st == DW_OK; i++)
-			st = resolve(x, &s->ops[i], x->prog->qregs, vb, qargs, j, &q[i]);
+			st = resolve(x, &s->ops[i], sc, j, &q[i]);
 		if (st == DW_OK)
-			st = apply_call(x, s, q, vb, c);
+			st = apply_call(x, s, q, sc->vb, c);
 	}
 	return st;
 }
 
-static int exec_for(exec *x, const qx_stmt *s, size_t vb, const int *qargs, ctx c)
+/* A def call: qubit arguments resolved in the caller (a qubit[n] argument
+ * takes a whole register), values evaluated there, then the body in a new
+ * variable frame and a new, zeroed bit frame.  Modifiers never reach here
+ * (the reader refuses them), so c carries no controls and no inversion. */
+static int exec_call(exec *x, const qx_stmt *s, const scope *sc, ctx c)
+{
+	const qx_gatedef *d = &x->prog->gates[s->user];
+	int q[QX_MAX_QUBITS + 1], nq = 0, st = DW_OK;
+	for (int i = 0; i < s->nops && st == DW_OK; i++) {
+		const qx_operand *o = &s->ops[i];
+		int n = o->kind == QO_REG ? op_reg(x, sc, o, 1)->size : 1;
+		if (nq + n > d->nqubits)
+			return dw_fail(x->err, DW_EINTERNAL, "%s:%ld:%ld: internal: %d qubits passed to "
+				"'%s', which takes %d", x->prog->name, s->line, s->col, nq + n, d->name,
+				d->nqubits);
+		for (int j = 0; j < n && st == DW_OK; j++)
+			st = resolve(x, o, sc, j, &q[nq++]);
+	}
+	if (st == DW_OK && nq != d->nqubits)
+		return dw_fail(x->err, DW_EINTERNAL, "%s:%ld:%ld: internal: %d qubits passed to "
+			"'%s', which takes %d", x->prog->name, s->line, s->col, nq, d->name, d->nqubits);
+	if (st == DW_OK)
+		st = distinct(x, s, q, nq, 0, "passed twice to one def call");
+	if (st)
+		return st;
+	if (x->depth >= QX_MAX_NEST)
+		return fail_at(x, s->line, s->col, "expected gate and def calls nested at most %d deep",
+			QX_MAX_NEST);
+	size_t frame;
+	if ((st = push_frame(x, d->nslots, &frame)))
+		return st;
+	for (int i = 0; i < s->nparams && st == DW_OK; i++) {
+		double v;
+		st = eval(x, s->params[i], sc->vb, &v);
+		x->vars[frame + (size_t)i] = v;     /* value arguments hold slots 0.. in order */
+	}
+	size_t bb = x->nlbits;
+	if (st == DW_OK && d->nbits) {
+		if (x->nlbits + (size_t)d->nbits > x->caplbits) {
+			size_t cap = x->caplbits ? x->caplbits : 64;
+			while (cap < x->nlbits + (size_t)d->nbits)
+				cap *= 2;
+			unsigned char *b = realloc(x->lbits, cap);
+			if (!b)
+				st = dw_fail(x->err, DW_EINTERNAL, "out of memory running %s", x->prog->name);
+			else {
+				x->lbits = b;
+				x->caplbits = cap;
+			}
+		}
+		if (st == DW_OK) {
+			memset(x->lbits + bb, 0, (size_t)d->nbits);
+			x->nlbits += (size_t)d->nbits;
+		}
+	}
+	if (st == DW_OK) {
+		scope body = {frame, q, d, bb};
+		x->depth++;
+		st = exec_block(x, &d->body, &body, c);
+		x->depth--;
+	}
+	x->nlbits = bb;
+	x->nvars = frame;
+	return st;
+}
+
+static int exec_for(exec *x, const qx_stmt *s, const scope *sc, ctx c)
 {
 	long long a, b, step = 1;
+	size_t vb = sc->vb;
 	int st = eval_int(x, s->start, vb, "loop bound", &a);
 	if (st == DW_OK)
 		st = eval_int(x, s->stop, vb, "loop bound", &b);
@@ -354,19 +475,20 @@ static int exec_for(exec *x, const qx_stmt *s, size_t vb, const int *qargs, ctx 
 	for (long long i = 0; i < count && st == DW_OK; i++) {
 		long long k = c.inv ? count - 1 - i : i;
 		x->vars[vb + (size_t)s->slot] = (double)(a + k * step);
-		st = exec_block(x, s->body, vb, qargs, c);
+		st = exec_block(x, s->body, sc, c);
 	}
 	return st;
 }
 
-static int exec_measure(exec *x, const qx_stmt *s, size_t vb)
+static int exec_measure(exec *x, const qx_stmt *s, const scope *sc)
 {
-	int len, st = broadcast(x, s, s->nops, x->prog->qregs, x->prog->cregs, s->nops == 2, &len);
+	int len, st = broadcast(x, s, sc, s->nops == 2, &len);
 	for (int j = 0; st == DW_OK && j < (len ? len : 1); j++) {
-		int q, bit = -1;
-		st = resolve(x, &s->ops[0], x->prog->qregs, vb, NULL, j, &q);
+		int q;
+		unsigned char *bit = NULL;
+		st = resolve(x, &s->ops[0], sc, j, &q);
 		if (st == DW_OK && s->nops == 2)
-			st = resolve(x, &s->ops[1], x->prog->cregs, vb, NULL, j, &bit);
+			st = resolve_bit(x, &s->ops[1], sc, j, &bit);
 		if (st)
 			break;
 		if (s->kind == QS_RESET) {
@@ -374,64 +496,74 @@ static int exec_measure(exec *x, const qx_stmt *s, size_t vb)
 			continue;
 		}
 		int v = dw_state_measure(x->st, q);
-		if (bit >= 0)
-			x->st->bits[bit] = (unsigned char)v;
+		if (bit)
+			*bit = (unsigned char)v;
 	}
 	return st;
 }
 
-static int exec_if(exec *x, const qx_stmt *s, size_t vb, const int *qargs, ctx c)
+static int exec_if(exec *x, const qx_stmt *s, const scope *sc, ctx c)
 {
 	const qx_operand *o = &s->ops[0];
-	const dw_qasm_reg *r = &x->prog->cregs[o->reg];
+	const dw_qasm_reg *r = op_reg(x, sc, o, 0);
 	long long want;
-	int st = eval_int(x, s->cond_value, vb, "value to compare bits with", &want);
+	int st = eval_int(x, s->cond_value, sc->vb, "value to compare bits with", &want);
 	if (st)
 		return st;
 	unsigned long long have = 0;
+	unsigned char *bit;
 	if (o->kind == QO_ELEM) {
-		int bit;
-		if ((st = resolve(x, o, x->prog->cregs, vb, NULL, 0, &bit)))
+		if ((st = resolve_bit(x, o, sc, 0, &bit)))
 			return st;
-		have = x->st->bits[bit];
+		have = *bit;
 	} else {
 		if (r->size > 62)
 			return fail_at(x, o->line, o->col, "expected a bit register of at most 62 bits "
 				"to compare with an integer");
-		for (int i = 0; i < r->size; i++)
-			have |= (unsigned long long)x->st->bits[r->offset + i] << i;
+		for (int i = 0; i < r->size; i++) {
+			if ((st = resolve_bit(x, o, sc, i, &bit)))
+				return st;
+			have |= (unsigned long long)*bit << i;
+		}
 	}
 	int equal = want >= 0 && have == (unsigned long long)want;
 	if (equal != s->cond_not)
-		return exec_block(x, s->body, vb, qargs, c);
+		return exec_block(x, s->body, sc, c);
 	if (s->orelse)
-		return exec_block(x, s->orelse, vb, qargs, c);
+		return exec_block(x, s->orelse, sc, c);
 	return DW_OK;
 }
 
-static int exec_stmt(exec *x, const qx_stmt *s, size_t vb, const int *qargs, ctx c)
+static int exec_stmt(exec *x, const qx_stmt *s, const scope *sc, ctx c)
 {
 	switch (s->kind) {
 	case QS_GATE:
 	case QS_GPHASE:
-		return exec_gate_stmt(x, s, vb, qargs, c);
+		return exec_gate_stmt(x, s, sc, c);
 	case QS_FOR:
-		return exec_for(x, s, vb, qargs, c);
+		return exec_for(x, s, sc, c);
 	case QS_MEASURE:
 	case QS_RESET:
-		return exec_measure(x, s, vb);
+		return exec_measure(x, s, sc);
 	case QS_IF:
-		return exec_if(x, s, vb, qargs, c);
+		return exec_if(x, s, sc, c);
+	case QS_CALL:
+		return exec_call(x, s, sc, c);
+	case QS_BITDECL: {
+		const dw_qasm_reg *r = &sc->def->lbits[s->slot];
+		memset(x->lbits + sc->bb + (size_t)r->offset, 0, (size_t)r->size);
+		return DW_OK;
+	}
 	default:
 		return dw_fail(x->err, DW_EINTERNAL, "unknown statement kind %d", s->kind);
 	}
 }
 
-static int exec_block(exec *x, const qx_block *b, size_t vb, const int *qargs, ctx c)
+static int exec_block(exec *x, const qx_block *b, const scope *sc, ctx c)
 {
 	int st = DW_OK;
 	for (size_t i = 0; i < b->n && st == DW_OK; i++)
-		st = exec_stmt(x, &b->s[c.inv ? b->n - 1 - i : i], vb, qargs, c);
+		st = exec_stmt(x, &b->s[c.inv ? b->n - 1 - i : i], sc, c);
 	return st;
 }
 
@@ -441,7 +573,7 @@ int dw_sim_exec(const dw_qasm_program *prog, const dw_qasm_params *params,
 	if (st->nqubits != prog->nqubits)
 		return dw_fail(err, DW_EINTERNAL, "%s: state has %d qubits, program %d", prog->name,
 			st->nqubits, prog->nqubits);
-	exec x = {prog, st, err, NULL, 0, 0, 0};
+	exec x = {prog, st, err, NULL, 0, 0, 0, NULL, 0, 0};
 	size_t base;
 	int rc = push_frame(&x, prog->nslots, &base);
 	/* bind inputs */
@@ -479,9 +611,11 @@ int dw_sim_exec(const dw_qasm_program *prog, const dw_qasm_params *params,
 		memset(st->bits, 0, (size_t)st->nbits);
 	}
 	ctx c = {0, 0, 0};
+	scope top = {base, NULL, NULL, 0};
 	if (rc == DW_OK)
-		rc = exec_block(&x, &prog->main, base, NULL, c);
+		rc = exec_block(&x, &prog->main, &top, c);
 	free(x.vars);
+	free(x.lbits);
 	return rc;
 }
 

@@ -274,11 +274,11 @@ static void test_errors(void)
 	check_error("include \"stdgates.inc\";\nqubit[2] q;\nctrl @ cx q[0], q[1];",
 		"t.qasm:3:8: expected 3 qubit operands for 'cx' with its controls, found 2");
 	check_error("qubit q;\nwhile (true) { }",
-		"t.qasm:2:1: expected a statement (a declaration, gate call, for, if, measure or "
-		"reset), found 'while'");
-	check_error("qubit q;\ndef f() { }",
-		"t.qasm:2:1: expected a statement (a declaration, gate call, for, if, measure or "
-		"reset), found 'def'");
+		"t.qasm:2:1: expected a statement (a declaration, gate or def call, for, if, measure "
+		"or reset), found 'while'");
+	check_error("qubit q;\ndef f() -> bit { }",
+		"t.qasm:2:9: expected '{' (a def returning a value is not read; only defs used as "
+		"statements are), found '->'");
 	check_error("include \"stdgates.inc\";\ngate g a { measure a; }",
 		"t.qasm:2:12: expected a gate call, gphase or for loop (a gate body is unitary), "
 		"found 'measure'");
@@ -301,8 +301,8 @@ static void test_errors(void)
 		"t.qasm:3:14: expected '[' (loops over sets are not read; use a range [a:b] or "
 		"[a:step:b]), found '{'");
 	check_error("include \"stdgates.inc\";\nqubit q;\nfor int i in [0:1] { qubit r; }",
-		"t.qasm:3:22: expected a gate call, for, if, measure or reset (declarations are read "
-		"only at the top level), found 'qubit'");
+		"t.qasm:3:22: expected a gate or def call, for, if, measure or reset (declarations "
+		"other than a def's local bits are read only at the top level), found 'qubit'");
 	check_error("qubit q;\nU(0, 0, 0) q[0:1];",
 		"t.qasm:2:15: expected ']' (register slices are not read), found ':'");
 	check_error("qubit q;\ngate g(a) b { U(a, 0, 0) q; }",
