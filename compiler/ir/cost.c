@@ -419,7 +419,8 @@ static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
 {
 	const dw_def *cd = &c->defs[callee];
 	uint32_t mc = cd->nargs + cd->pool;
-	int64_t *sub = malloc((size_t)(mc ? mc : 1) * 3 * sizeof *sub);
+	int64_t sub_small[3 * 128];
+	int64_t *sub = mc <= 128 ? sub_small : malloc((size_t)mc * 3 * sizeof *sub);
 	if (!sub)
 		return dw_fail(e, DW_EINTERNAL, "out of memory (depth)");
 	int64_t *prev = sub + mc, *tmp = sub + 2 * (size_t)mc;
@@ -511,7 +512,8 @@ static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
 	if (rc == DW_OK)
 		for (uint32_t i = 0; i < mc; i++)
 			v[port[i]] = sub[i];
-	free(sub);
+	if (sub != sub_small)
+		free(sub);
 	return rc;
 }
 
@@ -547,7 +549,8 @@ static int vec_def(dw_circuit *c, uint32_t id, const weighting *w, int64_t *v,
 		}
 		const dw_def *cd = &c->defs[o->callee];
 		uint32_t mc = cd->nargs + cd->pool;
-		uint32_t *port = malloc((mc ? mc : 1) * sizeof *port);
+		uint32_t port_small[256];
+		uint32_t *port = mc <= 256 ? port_small : malloc(mc * sizeof *port);
 		if (!port)
 			return dw_fail(e, DW_EINTERNAL, "out of memory (depth)");
 		for (uint32_t t = 0; t < cd->nargs; t++)
@@ -557,7 +560,8 @@ static int vec_def(dw_circuit *c, uint32_t id, const weighting *w, int64_t *v,
 		uint64_t reps = o->reps;
 		uint32_t callee = o->callee;
 		rc = vec_call(c, callee, port, reps, &cw, v, sat, e, depth);
-		free(port);
+		if (port != port_small)
+			free(port);
 	}
 	return rc;
 }
