@@ -27,8 +27,7 @@ int dw_ledger_build(dw_program *pg, dw_ledger *L, dw_error *e)
 	L->pg = pg;
 	dw_circuit *c = pg->circ;
 	/* rotation count first: it sets the synthesis share of each rotation */
-	c->t_weight_rotation = 0;
-	if (dw_cost_figures(c, pg->top, &L->fig, e))
+	if (dw_cost_counts(c, pg->top, &L->fig, e))
 		return e->status;
 	uint64_t nrot = L->fig.rotation_count;
 	bool ct = pg->problem->gates == DW_GATES_CLIFFORD_T;

@@ -309,8 +309,7 @@ static uint32_t lower_def(lctx *L, uint32_t id, const double *params)
 int dw_lower_clifford_t(dw_program *pg, dw_error *e)
 {
 	dw_figures f;
-	pg->circ->t_weight_rotation = 0;
-	if (dw_cost_figures(pg->circ, pg->top, &f, e))
+	if (dw_cost_counts(pg->circ, pg->top, &f, e))
 		return e->status;
 	pg->synth_rotations_planned = f.rotation_count;
 	pg->eps_rotation = f.rotation_count ? pg->budget.synth / (double)f.rotation_count : 0;

@@ -631,6 +631,21 @@ static void derive(dw_figures *f, int *sat)
 	}
 }
 
+int dw_cost_counts(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e)
+{
+	memset(out, 0, sizeof *out);
+	if (count_def(c, id, e))
+		return e->status;
+	int sat = c->defs[id].cost->saturated;
+	for (int s = 0; s < DW_STAGE_COUNT; s++) {
+		fill_counts(out, c->defs[id].cost->gates[s], &sat);
+		out->cond_count = dw_add_sat(out->cond_count, c->defs[id].cost->cond[s], &sat);
+	}
+	derive(out, &sat);
+	out->saturated = sat;
+	return DW_OK;
+}
+
 int dw_cost_figures(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e)
 {
 	memset(out, 0, sizeof *out);

@@ -189,6 +189,8 @@ typedef struct dw_figures {
 
 /* Figures of a definition as a whole (depth from all its inputs at time 0). */
 int dw_cost_figures(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e);
+/* The counts only (depth and t_depth left 0): cheaper. */
+int dw_cost_counts(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e);
 /* Same, restricted to the gates whose effective stage is s (the top level
  * NONE counts as s == DW_STAGE_NONE), depth counting only those gates. */
 int dw_cost_stage_figures(dw_circuit *c, uint32_t id, dw_stage s,
