@@ -13,7 +13,9 @@
  * A lookup XORs its word into the output, so it is its own inverse: the
  * uncomputation calls it again.
  * The temporary logical AND (4 T, arith.c) is uncomputed by its unitary
- * inverse (4 T). */
+ * inverse (4 T), or with target.uncompute: measure by measurement and a
+ * classically controlled cz (0 T; arith.c): then the controlled lookup
+ * costs exactly the published 4L - 4 T. */
 #include <stdlib.h>
 
 #include "dwell/program.h"
@@ -99,7 +101,7 @@ static void root(walker *w, uint32_t level, uint64_t lo)
 }
 
 uint32_t dw_lookup_unary_def(dw_circuit *c, uint32_t index_bits, const dw_table *t,
-	bool controlled, dw_error *e)
+	bool controlled, bool measure, dw_error *e)
 {
 	if (t->L == 0 || t->width == 0 || index_bits > 40 ||
 		dw_lookup_index_bits(t->L) > index_bits) {
@@ -110,7 +112,7 @@ uint32_t dw_lookup_unary_def(dw_circuit *c, uint32_t index_bits, const dw_table 
 	uint32_t and_c = dw_and_compute_def(c, e);
 	if (and_c == DW_NO_DEF)
 		return DW_NO_DEF;
-	uint32_t and_u = dw_inverse(c, and_c, e);
+	uint32_t and_u = measure ? dw_and_erase_def(c, e) : dw_inverse(c, and_c, e);
 	if (and_u == DW_NO_DEF)
 		return DW_NO_DEF;
 	uint32_t nctl = controlled ? 1 : 0;
@@ -133,7 +135,7 @@ uint32_t dw_lookup_unary_def(dw_circuit *c, uint32_t index_bits, const dw_table 
 }
 
 uint32_t dw_lookup_select_swap_def(dw_circuit *c, uint32_t index_bits,
-	const dw_table *t, uint32_t block_log2, dw_error *e)
+	const dw_table *t, uint32_t block_log2, bool measure, dw_error *e)
 {
 	if (block_log2 == 0 || block_log2 > index_bits || block_log2 > 16 ||
 		dw_lookup_index_bits(t->L) > index_bits || t->width == 0) {
@@ -164,7 +166,7 @@ uint32_t dw_lookup_select_swap_def(dw_circuit *c, uint32_t index_bits,
 	}
 	dw_table bt = {nblocks, (uint32_t)bw, words, bits};
 	uint32_t hi_bits = index_bits - block_log2;
-	uint32_t look = dw_lookup_unary_def(c, hi_bits, &bt, false, e);
+	uint32_t look = dw_lookup_unary_def(c, hi_bits, &bt, false, measure, e);
 	free(bits);
 	if (look == DW_NO_DEF)
 		return DW_NO_DEF;
@@ -173,31 +175,58 @@ uint32_t dw_lookup_select_swap_def(dw_circuit *c, uint32_t index_bits,
 		return DW_NO_DEF;
 	}
 	uint32_t nargs = index_bits + (uint32_t)bw;
-	dw_builder *b = dw_begin(c, "select_swap_block", nargs, 0, DW_STAGE_ORACLE);
-	uint32_t *q = malloc((size_t)(index_bits + bw) * sizeof *q);
-	if (!q) {
-		dw_end(b, NULL);
-		dw_fail(e, DW_EINTERNAL, "out of memory");
-		return DW_NO_DEF;
-	}
-	for (uint32_t k = 0; k < hi_bits; k++)
-		q[k] = block_log2 + k;
-	for (uint64_t k = 0; k < bw; k++)
-		q[hi_bits + k] = index_bits + (uint32_t)k;
-	dw_call(b, look, q, NULL, 1);
 	/* level i: slots s and s + 2^i (s a multiple of 2^(i+1)) swap when
 	 * index bit i is set; afterwards slot 0 holds word (index mod K) */
+	dw_builder *b = dw_begin(c, "swap_network", block_log2 + (uint32_t)bw, 0,
+		DW_STAGE_ORACLE);
 	for (uint32_t i = 0; i < block_log2; i++) {
 		uint64_t step = (uint64_t)1 << i;
 		for (uint64_t s = 0; s + step < K; s += 2 * step)
 			for (uint32_t k = 0; k < t->width; k++)
-				dw_g3(b, DW_G_CSWAP, i,
-					index_bits + (uint32_t)(s * t->width) + k,
-					index_bits + (uint32_t)((s + step) * t->width) + k);
+				dw_g3(b, DW_G_CSWAP, i, block_log2 + (uint32_t)(s * t->width) + k,
+					block_log2 + (uint32_t)((s + step) * t->width) + k);
 	}
-	uint32_t blk = dw_end(b, e);
-	uint32_t unblk = blk == DW_NO_DEF ? DW_NO_DEF : dw_inverse(c, blk, e);
-	if (unblk == DW_NO_DEF) {
+	uint32_t net = dw_end(b, e);
+	uint32_t unnet = net == DW_NO_DEF ? DW_NO_DEF : dw_inverse(c, net, e);
+	if (unnet == DW_NO_DEF)
+		return DW_NO_DEF;
+	uint32_t *q = malloc((size_t)(index_bits + bw) * sizeof *q);
+	if (!q) {
+		dw_fail(e, DW_EINTERNAL, "out of memory");
+		return DW_NO_DEF;
+	}
+	uint32_t *qn = malloc((size_t)(block_log2 + bw) * sizeof *qn);
+	if (!qn) {
+		free(q);
+		dw_fail(e, DW_EINTERNAL, "out of memory");
+		return DW_NO_DEF;
+	}
+	/* the block lookup and the network, and the same undone (a lookup is
+	 * its own inverse, so this works with measured ANDs too) */
+	uint32_t blk = DW_NO_DEF, unblk = DW_NO_DEF;
+	for (int pass = 0; pass < 2; pass++) {
+		b = dw_begin(c, pass ? "select_swap_unblock" : "select_swap_block", nargs, 0,
+			DW_STAGE_ORACLE);
+		for (uint32_t k = 0; k < hi_bits; k++)
+			q[k] = block_log2 + k;
+		for (uint64_t k = 0; k < bw; k++)
+			q[hi_bits + k] = index_bits + (uint32_t)k;
+		for (uint32_t k = 0; k < block_log2; k++)
+			qn[k] = k;
+		for (uint64_t k = 0; k < bw; k++)
+			qn[block_log2 + k] = index_bits + (uint32_t)k;
+		if (pass == 0) {
+			dw_call(b, look, q, NULL, 1);
+			dw_call(b, net, qn, NULL, 1);
+			blk = dw_end(b, e);
+		} else {
+			dw_call(b, unnet, qn, NULL, 1);
+			dw_call(b, look, q, NULL, 1);
+			unblk = dw_end(b, e);
+		}
+	}
+	free(qn);
+	if (blk == DW_NO_DEF || unblk == DW_NO_DEF) {
 		free(q);
 		return DW_NO_DEF;
 	}

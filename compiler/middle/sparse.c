@@ -437,15 +437,16 @@ uint32_t dw_sparse_term_def(dw_circuit *c, const dw_problem *p, const dw_sparse_
 	uint32_t n = (uint32_t)pl->n;
 	int bits = pl->value_bits;
 	bool cplx = pl->complex_values;
+	bool measure = p->uncompute == DW_UNCOMPUTE_MEASURE;
 	dw_table t;
 	uint64_t *data = dw_sparse_table(p, pl, colour, &t, e);
 	if (!data)
 		return DW_NO_DEF;
 	uint32_t look;
 	if (pl->block_log2) {
-		look = dw_lookup_select_swap_def(c, n + 1, &t, pl->block_log2, e);
+		look = dw_lookup_select_swap_def(c, n + 1, &t, pl->block_log2, measure, e);
 	} else {
-		look = dw_lookup_unary_def(c, n + 1, &t, false, e);
+		look = dw_lookup_unary_def(c, n + 1, &t, false, measure, e);
 	}
 	free(data);
 	if (look == DW_NO_DEF)

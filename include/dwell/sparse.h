@@ -28,11 +28,12 @@ uint32_t dw_lookup_index_bits(uint64_t L);
  * in quantum circuits with linear T complexity", Phys. Rev. X 8, 041015
  * (2018)).  Arguments: [control], index (index_bits qubits, little-endian),
  * output (width qubits).  With a control: L - 1 temporary ANDs (4L - 4 T),
- * each uncomputed unitarily (another 4L - 4 T); without: L - 2 of each
- * (L >= 2).  Indices >= L may alias entries below L (callers index < L).
+ * each uncomputed unitarily (another 4L - 4 T) or, with `measure`, by
+ * measurement (0 T, the definition is then not unitary); without a
+ * control: L - 2 of each (L >= 2).  Indices >= L may alias entries below L (callers index < L).
  * Stage DW_STAGE_ORACLE. */
 uint32_t dw_lookup_unary_def(dw_circuit *c, uint32_t index_bits, const dw_table *t,
-	bool controlled, dw_error *e);
+	bool controlled, bool measure, dw_error *e);
 
 /* Select-swap lookup with 2^block_log2 words per block ("Trading T-gates
  * for dirty qubits in state preparation and unitary synthesis",
@@ -43,7 +44,7 @@ uint32_t dw_lookup_unary_def(dw_circuit *c, uint32_t index_bits, const dw_table 
  * undone.  Arguments: index (index_bits), output (width).  Like the unary
  * lookup it XORs d_l into the output (its own inverse). */
 uint32_t dw_lookup_select_swap_def(dw_circuit *c, uint32_t index_bits,
-	const dw_table *t, uint32_t block_log2, dw_error *e);
+	const dw_table *t, uint32_t block_log2, bool measure, dw_error *e);
 
 /* ---- the plan for an explicit matrix (sparse.c) ---- */
 

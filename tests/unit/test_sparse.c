@@ -15,7 +15,9 @@
  *    against the exact matrix exponential (LAPACKE_zheev eigendecomposition
  *    of the dense Hermitian T_c) on every basis state with scratch |0>,
  *    scratch returning to |0>: real symmetric indefinite with diagonal,
- *    complex Hermitian, with and without sgn, unary and select-swap. */
+ *    complex Hermitian, with and without sgn, unary and select-swap, with
+ *    ANDs uncomputed unitarily or by measurement (every measurement
+ *    outcome branch simulated: tests/unit's projection below). */
 #include <complex.h>
 #include <lapacke.h>
 #include <stdlib.h>
@@ -63,6 +65,41 @@ static void test_and(void)
 }
 
 /* ---- lookups ---- */
+/* Simulation with measurements (for target.uncompute: measure): a measured
+ * qubit is projected on a chosen outcome (`prefer` when its probability is
+ * not zero, else the other), renormalised, and remembered for the
+ * classically controlled gates that test it. */
+typedef struct msim {
+	irsim s;
+	int prefer;
+	int outcome[64];
+	int measured;
+} msim;
+
+static int msim_gate(const dw_walk_gate *g, void *ctx)
+{
+	msim *m = ctx;
+	if (g->gate == DW_G_MEASURE) {
+		uint32_t q = g->qubits[0];
+		size_t bit = (size_t)1 << q;
+		double p[2] = {0, 0};
+		for (size_t i = 0; i < m->s.dim; i++)
+			p[(i & bit) != 0] += creal(m->s.psi[i] * conj(m->s.psi[i]));
+		int o = m->prefer;
+		if (p[o] < 1e-12)
+			o = 1 - o;
+		double pn = p[o];
+		for (size_t i = 0; i < m->s.dim; i++)
+			m->s.psi[i] = (((i & bit) != 0) == o) ? m->s.psi[i] / sqrt(pn) : 0;
+		m->outcome[q] = o;
+		m->measured++;
+		return 0;
+	}
+	if (g->cond && !m->outcome[g->cond_qubit])
+		return 0;
+	return irsim_gate(g, &m->s);
+}
+
 static int count_calls(const dw_circuit *c, uint32_t id, uint32_t callee)
 {
 	const dw_def *d = &c->defs[id];
@@ -73,9 +110,10 @@ static int count_calls(const dw_circuit *c, uint32_t id, uint32_t callee)
 	return n;
 }
 
-static void test_lookup(uint64_t L, uint32_t width, int mode)
+static void test_lookup(uint64_t L, uint32_t width, int mode, bool measure)
 {
-	/* mode 0: unary uncontrolled, 1: unary controlled, 2: select-swap */
+	/* mode 0: unary uncontrolled, 1: unary controlled, 2: select-swap;
+	 * measure: ANDs erased by measurement, every outcome branch checked */
 	uint32_t m = dw_lookup_index_bits(L);
 	if (mode == 2 && m < 1)
 		return;
@@ -92,9 +130,9 @@ static void test_lookup(uint64_t L, uint32_t width, int mode)
 	if (mode == 2) {
 		/* keep the simulated qubits few: 2-bit words, blocks of 2 or 4 */
 		uint32_t k = m == 3 ? 2 : 1;
-		id = dw_lookup_select_swap_def(c, m, &t, k, &e);
+		id = dw_lookup_select_swap_def(c, m, &t, k, measure, &e);
 	} else {
-		id = dw_lookup_unary_def(c, m, &t, mode == 1, &e);
+		id = dw_lookup_unary_def(c, m, &t, mode == 1, measure, &e);
 	}
 	CHECK(id != DW_NO_DEF, "lookup L=%llu: %s", (unsigned long long)L, e.msg);
 	if (id == DW_NO_DEF) {
@@ -109,12 +147,18 @@ static void test_lookup(uint64_t L, uint32_t width, int mode)
 		map[q] = q;
 	for (uint64_t l = 0; l < L; l++)
 		for (int on = 0; on <= (mode == 1); on++) {
+		for (int prefer = 0; prefer <= (measure ? 1 : 0); prefer++) {
+			msim ms;
+			memset(&ms, 0, sizeof ms);
+			irsim_init(&ms.s, (int)nq);
+			ms.prefer = prefer;
 			irsim s;
-			irsim_init(&s, (int)nq);
 			size_t in = (size_t)(l << ctl) | (size_t)(mode == 1 ? on : 0);
-			s.psi[0] = 0;
-			s.psi[in] = 1;
-			irsim_apply(&s, c, id, map, NULL);
+			ms.s.psi[0] = 0;
+			ms.s.psi[in] = 1;
+			int wr = dw_walk(c, id, map, NULL, msim_gate, &ms);
+			CHECK(wr == 0, "walk %d", wr);
+			s = ms.s;
 			uint64_t word = (mode != 1 || on) ? bits[l * words] : 0;
 			size_t want = in | (size_t)(word << (ctl + m));
 			CHECK(cabs(s.psi[want] - 1) < 1e-12, "lookup mode %d L=%llu l=%llu on=%d: "
@@ -122,10 +166,12 @@ static void test_lookup(uint64_t L, uint32_t width, int mode)
 				(unsigned long long)l, on, cabs(s.psi[want]));
 			free(s.psi);
 		}
+		}
 	if (mode <= 1) {
 		dw_figures f;
 		dw_cost_figures(c, id, &f, &e);
-		uint32_t and_c = dw_and_compute_def(c, &e), and_u = dw_inverse(c, and_c, &e);
+		uint32_t and_c = dw_and_compute_def(c, &e);
+		uint32_t and_u = measure ? dw_and_erase_def(c, &e) : dw_inverse(c, and_c, &e);
 		int nc = count_calls(c, id, and_c), nu = count_calls(c, id, and_u);
 		/* published: 4L - 4 T for controlled unary iteration (one AND of 4 T
 		 * per internal node); without a control the top split needs none */
@@ -136,9 +182,17 @@ static void test_lookup(uint64_t L, uint32_t width, int mode)
 			CHECK(4LL * nc == 4LL * (long long)L - 4, "controlled lookup L=%llu: AND T "
 				"%d vs the published 4L - 4 = %lld", (unsigned long long)L, 4 * nc,
 				4LL * (long long)L - 4);
-		CHECK(f.t_count_exact == (uint64_t)(8 * ands), "lookup L=%llu: T-count %llu, "
-			"expected %lld (4L-4 compute + 4L-4 unitary uncompute)",
-			(unsigned long long)L, (unsigned long long)f.t_count_exact, 8 * ands);
+		if (measure) {
+			CHECK(f.t_count_exact == (uint64_t)(4 * ands), "measured lookup L=%llu: "
+				"T-count %llu, expected %lld", (unsigned long long)L,
+				(unsigned long long)f.t_count_exact, 4 * ands);
+			CHECK(f.measure_count == (uint64_t)ands, "measured lookup: %llu "
+				"measurements", (unsigned long long)f.measure_count);
+		} else {
+			CHECK(f.t_count_exact == (uint64_t)(8 * ands), "lookup L=%llu: T-count %llu, "
+				"expected %lld (4L-4 compute + 4L-4 unitary uncompute)",
+				(unsigned long long)L, (unsigned long long)f.t_count_exact, 8 * ands);
+		}
 	}
 	free(map);
 	free(bits);
@@ -312,13 +366,20 @@ static void check_terms(hand *h, bool with_sgn, double theta, const char *what)
 		for (uint32_t q = 0; q < nq; q++)
 			map[q] = q;
 		double worst = 0, leak = 0;
-		for (size_t in = 0; in < D; in++) {
-			irsim s;
-			irsim_init(&s, (int)nq);
+		bool measure = h->p.uncompute == DW_UNCOMPUTE_MEASURE;
+		for (size_t run = 0; run < D * (measure ? 2 : 1); run++) {
+			size_t in = run % D;
+			msim ms;
+			memset(&ms, 0, sizeof ms);
+			ms.prefer = (int)(run / D);
+			irsim_init(&ms.s, (int)nq);
+			irsim s = ms.s;
 			s.psi[0] = 0;
 			s.psi[in] = 1;
 			double par = theta;
-			irsim_apply(&s, circ, id, map, &par);
+			CHECK(dw_walk(circ, id, map, &par, msim_gate, &ms) == 0, "walk");
+			CHECK(measure ? ms.measured > 0 : ms.measured == 0, "%s: %d measurements",
+				what, ms.measured);
 			for (size_t i = 0; i < s.dim; i++) {
 				if (i >= D) {
 					leak += creal(s.psi[i] * conj(s.psi[i]));
@@ -372,6 +433,14 @@ static void test_exponentials(void)
 		check_terms(&h, true, thetas[t], "real 2x2 with sgn");
 		hand_free(&h);
 	}
+	hand_make(&h, 2, real4, 5, 0);
+	h.p.uncompute = DW_UNCOMPUTE_MEASURE;   /* ANDs erased by measurement */
+	check_terms(&h, true, 0.9, "real 4x4 with sgn, measured");
+	hand_free(&h);
+	hand_make(&h, 2, cplx4, 4, 0);
+	h.p.uncompute = DW_UNCOMPUTE_MEASURE;
+	check_terms(&h, false, -1.7, "complex 4x4, measured");
+	hand_free(&h);
 	hand_make(&h, 1, tiny, 3, 1);   /* 14 qubits with the block of 2 words */
 	check_terms(&h, false, 1.3, "real 2x2 select-swap");
 	check_terms(&h, true, -0.4, "real 2x2 select-swap with sgn");
@@ -392,8 +461,10 @@ int main(void)
 	test_and();
 	uint64_t Ls[] = {1, 2, 3, 4, 5, 7, 8, 13, 16, 21};
 	for (size_t i = 0; i < sizeof Ls / sizeof *Ls; i++)
-		for (int mode = 0; mode < 3; mode++)
-			test_lookup(Ls[i], 4, mode);
+		for (int mode = 0; mode < 3; mode++) {
+			test_lookup(Ls[i], 4, mode, false);
+			test_lookup(Ls[i], 4, mode, true);
+		}
 	test_exponentials();
 	return check_done();
 }
