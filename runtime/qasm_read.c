@@ -525,11 +525,12 @@ static int parse_measure(qx_parser *p, qx_block *b, int assign)
 	}
 	if ((st = qx_expect(p, ";")))
 		return st;
-	if (have_bit && (q.kind == QO_REG) != (c.kind == QO_REG))
-		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected a single qubit with a single "
-			"bit, or a register with a bit register", p->file, t->line, t->col);
+	/* a register of one (`bit m;`, `qubit a;`) pairs with a single qubit or bit */
 	const dw_qasm_reg *qr = q.kind == QO_REG ? qx_operand_reg(p, &q, 1) : NULL;
 	const dw_qasm_reg *cr = have_bit && c.kind == QO_REG ? qx_operand_reg(p, &c, 0) : NULL;
+	if (have_bit && (((qr ? qr->size : 1) != 1 && !cr) || ((cr ? cr->size : 1) != 1 && !qr)))
+		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected a single qubit with a single "
+			"bit, or a register with a bit register", p->file, t->line, t->col);
 	if (qr && cr && qr->size != cr->size)
 		return dw_fail(p->err, DW_EINPUT, "%s:%ld:%ld: expected registers of equal size "
 			"('%s' has %d qubits, '%s' %d bits)", p->file, t->line, t->col,
