@@ -382,6 +382,14 @@ int dw_sparse_plan_make(const dw_problem *p, dw_sparse_plan *pl, dw_error *e)
 	return DW_OK;
 }
 
+double complex dw_sparse_loaded(const dw_sparse_plan *pl, uint32_t c, int64_t k)
+{
+	const dw_sparse_colour *col = &pl->colour[c];
+	double u = colour_step(col, pl->complex_values, pl->value_bits);
+	return decode(encode(col->val[k], pl->complex_values, pl->value_bits, u),
+		pl->complex_values, pl->value_bits, u);
+}
+
 static void put_bits(uint64_t *word, uint32_t pos, uint32_t nbits, uint64_t v)
 {
 	for (uint32_t i = 0; i < nbits; i++)

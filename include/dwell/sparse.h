@@ -83,6 +83,10 @@ void dw_sparse_plan_free(dw_sparse_plan *pl);
 uint64_t *dw_sparse_table(const dw_problem *p, const dw_sparse_plan *pl, uint32_t c,
 	dw_table *out, dw_error *e);
 
+/* Edge k of colour c as the circuit loads it (unscaled): the value after
+ * rounding to the plan's fixed point. */
+double complex dw_sparse_loaded(const dw_sparse_plan *pl, uint32_t c, int64_t k);
+
 /* The definition exp(-i theta/2 X_anc (x) [X_sgn (x)] A_c / alpha) on
  * (anc, [sgn], sys[0..n)) with one parameter theta. */
 uint32_t dw_sparse_term_def(dw_circuit *c, const dw_problem *p, const dw_sparse_plan *pl,
