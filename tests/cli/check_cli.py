@@ -9,7 +9,8 @@ file exits 2 with "dwell: FILE:LINE:" and writes no file; --set overrides
 reach the ledger; a problem-file budget that is exceeded exits 3 naming the
 figure; --flat holds only standard gates and as many gates as the ledger
 counts; `cost --json` equals the compiled ledger; diff and check run on real
-ledgers.  The JSON is read with Python's json module (RFC 8259) and the
+ledgers; measurement-mode circuits (def subroutines) verify with the trace
+distance of unitary uncomputation and run to the state of their flat form.  The JSON is read with Python's json module (RFC 8259) and the
 OpenQASM text is checked against the OpenQASM 3 stdgates.inc names."""
 import json
 import os
@@ -168,7 +169,45 @@ v = json.loads(out) if out else {}
 check(rc == 3 and v.get("passed") is False and v.get("trace_distance", 0) > 0.1,
       f"starved verify fails with exit 3 and a large trace distance: {rc} {out}")
 
-# 11. usage errors
+# 11. measurement mode (target.uncompute: measure): the circuits hold `def`
+#     subroutines with mid-circuit measurement and classically controlled
+#     corrections.  The measured erasure is exact on every outcome, so verify
+#     passes with the trace distance of the unitary uncomputation (up to
+#     rounding); and the def program run by the runtime gives the same state
+#     as its --flat expansion for the same seed (the same measurements are
+#     drawn in the same order).
+for prob, k in ((SAMPLE, "8"), ("samples/cooling-plate.yaml", "16")):
+    td = {}
+    for mode in ("unitary", "measure"):
+        rc, out, err = run("verify", prob, "--json", "--instances", k,
+                           "--set", f"target.uncompute={mode}")
+        v = json.loads(out) if rc == 0 and out else {}
+        check(rc == 0 and v.get("passed") is True, f"verify {prob} in {mode} mode: {rc} {err}")
+        td[mode] = v.get("trace_distance", -1.0)
+        if mode == "measure":
+            check(abs(v.get("work_clean_probability", 0) - 1) <= 1e-9,
+                  f"{prob}: work qubits back in |0> in measure mode: {out}")
+    check(td["unitary"] > 0 and abs(td["measure"] - td["unitary"]) <= 1e-9,
+          f"{prob}: same trace distance in measure mode: {td}")
+cp = "samples/cooling-plate.yaml"
+for form in ("def", "flat"):
+    rc, out, err = run("compile", cp, "--set", "target.uncompute=measure", "-o",
+                       f"{tmp}/m-{form}", "--quiet", *(["--flat"] if form == "flat" else []))
+    check(rc == 0, f"compile {cp} in measure mode ({form}): {err}")
+hier = read(f"{tmp}/m-def/circuit.qasm")
+check(re.search(r"^def \w+\(.*qubit", hier, re.M) is not None
+      and re.search(r"=\s*measure", hier) is not None,
+      "measure-mode circuit holds def subroutines with measurements")
+amps = {}
+for form in ("def", "flat"):
+    rc, out, err = run("run", f"{tmp}/m-{form}/circuit.qasm", "--json", "--seed", "3")
+    check(rc == 0, f"run the {form} measure-mode circuit: {err}")
+    amps[form] = json.loads(out)["amplitudes"] if rc == 0 else []
+check(len(amps["def"]) == 256 and len(amps["def"]) == len(amps["flat"])
+      and max(abs(complex(*a) - complex(*b)) for a, b in zip(amps["def"], amps["flat"])) <= 1e-12,
+      "def program and its flat expansion give the same state for seed 3")
+
+# 12. usage errors
 rc, out, err = run("compile")
 check(rc == 1, "missing problem: usage error")
 rc, out, err = run("compile", SAMPLE, "--bogus")
