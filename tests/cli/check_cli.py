@@ -176,19 +176,24 @@ check(rc == 3 and v.get("passed") is False and v.get("trace_distance", 0) > 0.1,
 #     rounding); and the def program run by the runtime gives the same state
 #     as its --flat expansion for the same seed (the same measurements are
 #     drawn in the same order).
-for prob, k in ((SAMPLE, "8"), ("samples/cooling-plate.yaml", "16")):
+#     The 8 x 8 plate has 3-bit axes, so its stencil increments, decrements
+#     and comparators hold measured logical-ANDs too.
+for prob, k, extra in ((SAMPLE, "8", []), ("samples/cooling-plate.yaml", "16", []),
+                       ("samples/cooling-plate.yaml", "2",
+                        ["--set", "matrix.stencil.shape=[8,8]"])):
     td = {}
     for mode in ("unitary", "measure"):
         rc, out, err = run("verify", prob, "--json", "--instances", k,
-                           "--set", f"target.uncompute={mode}")
+                           "--set", f"target.uncompute={mode}", *extra)
         v = json.loads(out) if rc == 0 and out else {}
-        check(rc == 0 and v.get("passed") is True, f"verify {prob} in {mode} mode: {rc} {err}")
+        check(rc == 0 and v.get("passed") is True,
+              f"verify {prob} {extra} in {mode} mode: {rc} {err}")
         td[mode] = v.get("trace_distance", -1.0)
         if mode == "measure":
             check(abs(v.get("work_clean_probability", 0) - 1) <= 1e-9,
-                  f"{prob}: work qubits back in |0> in measure mode: {out}")
+                  f"{prob} {extra}: work qubits back in |0> in measure mode: {out}")
     check(td["unitary"] > 0 and abs(td["measure"] - td["unitary"]) <= 1e-9,
-          f"{prob}: same trace distance in measure mode: {td}")
+          f"{prob} {extra}: same trace distance in measure mode: {td}")
 cp = "samples/cooling-plate.yaml"
 for form in ("def", "flat"):
     rc, out, err = run("compile", cp, "--set", "target.uncompute=measure", "-o",
