@@ -406,7 +406,7 @@ int qx_parse_local_bits(qx_parser *p, qx_block *b, int old_style)
 		return st;
 	if (d->nbits + size > QX_MAX_BITS)
 		return qx_error_at(p, name, "expected at most %d local bits in a def", QX_MAX_BITS);
-	size_t cap = d->nlbits;   /* grown one at a time: the array is exact */
+	size_t cap = d->nlbits;   /* no spare capacity is kept: reallocated on each declaration */
 	if ((st = qx_grow(p, (void **)&d->lbits, &cap, d->nlbits, sizeof *d->lbits))
 		|| (st = qx_declare(p, name, SY_LCREG, (int)d->nlbits, 0)))
 		return st;
