@@ -23,7 +23,8 @@
  *   rotate  on anc, restricted to the pair: x X - y Y for A[j][pi(j)] =
  *           x + iy; real values: rx(theta v_i w_i) controlled by bit i of
  *           v (two's complement weights w_i); complex values in polar form
- *           r e^{i phi}: rz(phi) rx(theta r) rz(-phi), each by bits;
+ *           r e^{i phi}: rz(phi) rx(theta r) rz(-phi), each by bits; a
+ *           controlled rz is rz, cx, rz, cx and rx = h rz h;
  *           variant I: cx(anc -> sgn) around the rotations makes it
  *           (x X - y Y) (x) X_sgn;
  *   then the cswap and the lookup again (inverse).
@@ -430,6 +431,17 @@ uint64_t *dw_sparse_table(const dw_problem *p, const dw_sparse_plan *pl, uint32_
 	return bits;
 }
 
+/* Controlled rz(angle) on tgt: rz(angle/2), cx, rz(-angle/2), cx (exactly
+ * crz, global phase included; common practice).  Plain rz and cx keep the
+ * term lowerable to Clifford+T. */
+static void ctrl_rz(dw_builder *b, uint32_t ctl, uint32_t tgt, dw_expr angle)
+{
+	dw_r1(b, DW_G_RZ, tgt, dw_expr_scale(angle, 0.5));
+	dw_g2(b, DW_G_CX, ctl, tgt);
+	dw_r1(b, DW_G_RZ, tgt, dw_expr_scale(angle, -0.5));
+	dw_g2(b, DW_G_CX, ctl, tgt);
+}
+
 /* cswap(ctl; x_i, y_i) for i < n: arguments ctl, x[n], y[n]. */
 static uint32_t pair_swap_def(dw_circuit *c, uint32_t n, dw_error *e)
 {
@@ -495,22 +507,18 @@ uint32_t dw_sparse_term_def(dw_circuit *c, const dw_problem *p, const dw_sparse_
 	if (cplx)
 		for (int i = 0; i < bits; i++) {
 			double w = i == bits - 1 ? -half : ldexp(1.0, i);
-			uint32_t qq[2] = {PH + (uint32_t)i, anc};
-			dw_expr a = dw_const(M_PI * w / half);
-			dw_gate_op(b, DW_G_CRZ, qq, &a);
+			ctrl_rz(b, PH + (uint32_t)i, anc, dw_const(M_PI * w / half));
 		}
+	dw_g1(b, DW_G_H, anc);              /* rx = h rz h */
 	for (int i = 0; i < bits; i++) {
 		double w = (!cplx && i == bits - 1) ? -half : ldexp(1.0, i);
-		uint32_t qq[2] = {V + (uint32_t)i, anc};
-		dw_expr a = dw_par(0, u * w / p->alpha);
-		dw_gate_op(b, DW_G_CRX, qq, &a);
+		ctrl_rz(b, V + (uint32_t)i, anc, dw_par(0, u * w / p->alpha));
 	}
+	dw_g1(b, DW_G_H, anc);
 	if (cplx)
 		for (int i = 0; i < bits; i++) {
 			double w = i == bits - 1 ? -half : ldexp(1.0, i);
-			uint32_t qq[2] = {PH + (uint32_t)i, anc};
-			dw_expr a = dw_const(-M_PI * w / half);
-			dw_gate_op(b, DW_G_CRZ, qq, &a);
+			ctrl_rz(b, PH + (uint32_t)i, anc, dw_const(-M_PI * w / half));
 		}
 	if (with_sgn)
 		dw_g2(b, DW_G_CX, anc, sgn);
