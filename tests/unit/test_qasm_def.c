@@ -164,6 +164,15 @@ static void test_unitary_defs(void)
 		"def outer2(qubit[2] r) { inner2(r); ctrl @ x r[1], r[0]; }\n"
 		"qubit[2] q;\nouter2(q);", three, 4);
 
+	/* an element of a def's qubit[2] argument passed on to a def taking a
+	 * single qubit, its index a loop variable of the body: x on r[1] only
+	 * (i = 1), i.e. q[1]: index 2 */
+	double complex two[4] = {0, 0, 1, 0};
+	check_state("element of a qubit[2] argument passed on", STD
+		"def flip(qubit a) { x a; }\n"
+		"def second(qubit[2] r) { for int i in [1:1] { flip(r[i]); } }\n"
+		"qubit[2] q;\nsecond(q);", two, 4);
+
 	/* a local name may shadow a global register (scope.rst): the argument
 	 * q of the def is the qubit passed, r (qubit 1): index 2 */
 	double complex shadow[4] = {0, 0, 1, 0};
