@@ -15,6 +15,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <cblas.h>
 #include <lapacke.h>
 
 #include "dwell/mtx.h"
@@ -385,6 +386,10 @@ int dw_problem_analyse(dw_problem *p, dw_error *err)
 		err = &local;
 	if (p->analysed)
 		return DW_OK;
+	/* Debian's pthread OpenBLAS, running its own threads inside a process
+	 * that also uses OpenMP (the simulator), was seen to crash in
+	 * zheevd's zgemv on a 2048-row problem: keep OpenBLAS on one thread. */
+	openblas_set_num_threads(1);
 	switch (p->matrix_kind) {
 	case DW_MATRIX_PAULI:
 		return analyse_pauli(p, err);
