@@ -351,7 +351,7 @@ static int depth_def(dw_circuit *c, uint32_t id, const weighting *w,
 }
 
 /* ---- depth by propagating a front vector (large definitions) ----
- * Small definitions (at most small_ports qubits, 24 by default) keep a max-plus matrix;
+ * Small definitions (at most small_ports qubits, 40 by default) keep a max-plus matrix;
  * a larger one is walked with the vector of wire fronts, its small callees
  * applied through their matrices.  A loop is iterated until one iteration
  * shifts every wire the body touches by the same amount c: the body is
@@ -360,7 +360,7 @@ static int depth_def(dw_circuit *c, uint32_t id, const weighting *w,
  * that does not settle within SETTLE_MAX iterations falls back to the
  * matrix power. */
 #define SETTLE_MAX 64
-static uint32_t small_ports = 24;
+static uint32_t small_ports = 40;
 
 void dw_cost_set_matrix_limit(uint32_t ports)
 {

@@ -197,7 +197,7 @@ int dw_cost_stage_figures(dw_circuit *c, uint32_t id, dw_stage s,
 	dw_figures *out, dw_error *e);
 /* Definitions on at most `ports` qubits keep a max-plus depth matrix;
  * larger ones are evaluated by propagating a front vector (both exact).
- * Default 24; tests set 0 to exercise the vector path everywhere.  Call it
+ * Default 40; tests set 0 to exercise the vector path everywhere.  Call it
  * before any cost is computed on a circuit. */
 void dw_cost_set_matrix_limit(uint32_t ports);
 /* Qubits a definition needs: nargs + pool. */

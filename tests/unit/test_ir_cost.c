@@ -256,7 +256,7 @@ int main(void)
 	dw_cost_set_matrix_limit(0);   /* front vectors and loop settling */
 	test_random();
 	test_hash_consing_and_loops();
-	dw_cost_set_matrix_limit(24);
+	dw_cost_set_matrix_limit(40);
 	test_hash_consing_and_loops();
 	return check_done();
 }

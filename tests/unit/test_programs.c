@@ -117,7 +117,7 @@ static void run_problem(const char *path, const char *const *sets, size_t nsets,
 					(long long)f2.depth, (long long)cn.depth);
 				dw_program_free(&pg2);
 			}
-			dw_cost_set_matrix_limit(24);
+			dw_cost_set_matrix_limit(40);
 			free(cn.t);
 		}
 		free(map);
