@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "dwell/emit.h"
+#include "dwell/sparse.h"
 
 #define T_FORMULA "ceil(3*log2(1/eps_rotation)): leading term of the typical T-count of " \
 	"optimal ancilla-free Clifford+T z-rotation synthesis (Quantum Inf. Comput. 16, 2016); " \
@@ -178,6 +179,26 @@ static void write_json(FILE *f, const dw_ledger *L)
 	fprintf(f, ",\n    \"terms\": %zu,\n    \"reflections_per_step\": %d\n  },\n",
 		pg->nterms, pg->order == 1 || pg->order == 2 ? 2 : 2 * (int)pow(5, pg->order / 2 - 1));
 
+	if (p->matrix_kind == DW_MATRIX_FILE) {
+		/* the sparse-access oracles: colours, fixed point, data error */
+		dw_sparse_plan pl;
+		dw_error ign = {0};
+		if (dw_sparse_plan_make(p, &pl, &ign) == DW_OK) {
+			fprintf(f, "  \"oracle\": {\n    \"colours\": %u,\n    \"lookup\": \"%s\",\n"
+				"    \"select_swap_block\": %u,\n    \"value_bits\": %d,\n"
+				"    \"value_bits_auto\": %s,\n    \"complex_values\": %s,\n"
+				"    \"lookup_width\": %u,\n    \"delta_norm\": ", pl.ncolours,
+				p->lookup == DW_LOOKUP_SELECT_SWAP ? "select-swap" : "unary",
+				pl.block_log2 ? 1u << pl.block_log2 : 0u, pl.value_bits,
+				pl.value_bits_auto ? "true" : "false",
+				pl.complex_values ? "true" : "false", pl.lookup_width);
+			jnum(f, pl.delta_norm);
+			fprintf(f, ",\n    \"data_error_bound\": ");
+			jnum(f, pl.data_error);
+			fprintf(f, "\n  },\n");
+			dw_sparse_plan_free(&pl);
+		}
+	}
 	fprintf(f, "  \"error_budget\": {\n    \"path\": ");
 	jnum(f, pg->budget.path);
 	fprintf(f, ",\n    \"split\": ");
@@ -355,6 +376,16 @@ void dw_ledger_table(const dw_ledger *L, FILE *f)
 	fprintf(f, "error budget (trace distance)\n  path %.3g + split %.3g + synth %.3g + "
 		"data %.3g = %.3g\n", pg->budget.path, pg->budget.split, pg->budget.synth,
 		pg->budget.data, pg->budget.total);
+	double achieved = 0;
+	for (int64_t j = 0; j < s->q; j++)
+		achieved += s->seg[j].bound;
+	if (achieved > pg->budget.split * (1 + 1e-12))
+		fprintf(f, "  note: the splitting-error bound of the chosen steps is %.3g, above "
+			"its share %.3g (formula.steps given); the bound is conservative: run "
+			"dwell verify\n", achieved, pg->budget.split);
+	if (s->path_error > pg->budget.path * (1 + 1e-12))
+		fprintf(f, "  note: the estimated path error %.3g is above its share %.3g "
+			"(schedule.steps given)\n", s->path_error, pg->budget.path);
 	fprintf(f, "qubits\n  %-22s %llu (", "total", (unsigned long long)L->qubits_total);
 	for (int r = 0; r < pg->nreg; r++)
 		fprintf(f, "%s%s %u", r ? ", " : "", pg->reg[r].name, pg->reg[r].size);
