@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "dwell/emit.h"
+#include "dwell/json.h"
 #include "dwell/sparse.h"
 
 #define T_FORMULA "ceil(3*log2(1/eps_rotation)): leading term of the typical T-count of " \
@@ -64,19 +65,10 @@ int dw_ledger_build(dw_program *pg, dw_ledger *L, dw_error *e)
 	return DW_OK;
 }
 
+/* a JSON string literal (the reader's writer, json_read.c) */
 static void jstr(FILE *f, const char *s)
 {
-	fputc('"', f);
-	for (; *s; s++) {
-		unsigned char ch = (unsigned char)*s;
-		if (ch == '"' || ch == '\\')
-			fprintf(f, "\\%c", ch);
-		else if (ch < 0x20)
-			fprintf(f, "\\u%04x", ch);
-		else
-			fputc(ch, f);
-	}
-	fputc('"', f);
+	dw_json_write_string(f, s, strlen(s));
 }
 
 static void jnum(FILE *f, double v)

@@ -413,6 +413,22 @@ static const unsigned char *touched(dw_circuit *c, uint32_t id, dw_error *e)
 static int vec_def(dw_circuit *c, uint32_t id, const weighting *w, int64_t *v,
 	bool *sat, dw_error *e, int depth);
 
+/* v = v (*) x (max-plus row vector times matrix), tmp as scratch */
+static void apply_matrix(int64_t *v, const mat *x, int64_t *tmp, bool *sat)
+{
+	uint32_t m = x->m;
+	for (uint32_t ou = 0; ou < m; ou++) {
+		int64_t best = NEG;
+		for (uint32_t in = 0; in < m; in++) {
+			int64_t r = sat_add(v[in], x->a[(size_t)in * m + ou], sat);
+			if (r > best)
+				best = r;
+		}
+		tmp[ou] = best;
+	}
+	memcpy(v, tmp, m * sizeof *v);
+}
+
 /* Apply one call (reps times) of callee to the fronts v[port[.]]. */
 static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
 	uint64_t reps, const weighting *w, int64_t *v, bool *sat, dw_error *e, int depth)
@@ -434,18 +450,8 @@ static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
 			const mat *use = cm;
 			if (reps > 1 && (rc = mat_pow(&powered, cm, reps, sat, e)) == DW_OK)
 				use = &powered;
-			if (rc == DW_OK) {
-				for (uint32_t ou = 0; ou < mc; ou++) {
-					int64_t best = NEG;
-					for (uint32_t in = 0; in < mc; in++) {
-						int64_t r = sat_add(sub[in], use->a[(size_t)in * mc + ou], sat);
-						if (r > best)
-							best = r;
-					}
-					tmp[ou] = best;
-				}
-				memcpy(sub, tmp, mc * sizeof *sub);
-			}
+			if (rc == DW_OK)
+				apply_matrix(sub, use, tmp, sat);
 			free(powered.a);
 		}
 	} else {
@@ -491,19 +497,8 @@ static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
 				const mat *cm;
 				mat powered = {0};
 				if ((rc = depth_def(c, callee, w, &cm, sat, e)) == DW_OK &&
-				    (rc = mat_pow(&powered, cm, reps - done, sat, e)) == DW_OK) {
-					for (uint32_t ou = 0; ou < mc; ou++) {
-						int64_t best = NEG;
-						for (uint32_t in = 0; in < mc; in++) {
-							int64_t r = sat_add(sub[in],
-								powered.a[(size_t)in * mc + ou], sat);
-							if (r > best)
-								best = r;
-						}
-						tmp[ou] = best;
-					}
-					memcpy(sub, tmp, mc * sizeof *sub);
-				}
+				    (rc = mat_pow(&powered, cm, reps - done, sat, e)) == DW_OK)
+					apply_matrix(sub, &powered, tmp, sat);
 				free(powered.a);
 				done = reps;
 			}
@@ -648,15 +643,9 @@ int dw_cost_counts(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e)
 
 int dw_cost_figures(dw_circuit *c, uint32_t id, dw_figures *out, dw_error *e)
 {
-	memset(out, 0, sizeof *out);
-	if (count_def(c, id, e))
+	if (dw_cost_counts(c, id, out, e))
 		return e->status;
-	int sat = c->defs[id].cost->saturated;
-	for (int s = 0; s < DW_STAGE_COUNT; s++) {
-		fill_counts(out, c->defs[id].cost->gates[s], &sat);
-		out->cond_count = dw_add_sat(out->cond_count, c->defs[id].cost->cond[s], &sat);
-	}
-	derive(out, &sat);
+	bool sat = out->saturated;
 	bool dsat = false;
 	weighting w = {W_DEPTH, DW_STAGE_NONE, DW_STAGE_NONE, c->t_weight_rotation};
 	dw_cost *k = c->defs[id].cost;
