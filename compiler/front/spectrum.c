@@ -7,8 +7,8 @@
  * rhs |0>|b>), and the dimension is padded with the diagonal block alpha*I
  * (rhs zero there), so the scaled spectrum stays inside [1/kappa, 1] and the
  * solution's padding part is zero.  The result replaces p->matrix.
- * Dense LAPACKE (zheevd / zgesdd) up to 4096 rows; beyond that a clear
- * refusal.  Stencils: closed forms in stencil_spectrum.c. */
+ * Dense LAPACKE (zheevd / zgesdd) up to 4096 rows; beyond that Lanczos
+ * bounds (lanczos.c, kappa_source "lanczos").  Stencils: closed forms in stencil_spectrum.c. */
 #include <complex.h>
 #include <math.h>
 #include <stdio.h>
@@ -18,6 +18,7 @@
 #include <cblas.h>
 #include <lapacke.h>
 
+#include "dwell/lanczos.h"
 #include "dwell/mtx.h"
 #include "dwell/problem.h"
 #include "dwell/stencil.h"
@@ -172,14 +173,79 @@ static void csr_push(dw_csr *m, int64_t col, double complex v)
 	m->nnz++;
 }
 
-/* Hermitian, padded: rows r < d are conj of column r of the (symmetrised)
- * dense d; rows d..dp-1 hold alpha on the diagonal (set later). */
-static dw_csr *build_padded(const double complex *a, int64_t d, int64_t dp,
+/* A^dagger of the square CSR a (rows sorted by column, as the reader
+ * gives them; the counting sort keeps them sorted). */
+static dw_csr *csr_adjoint(const dw_csr *a, dw_error *err)
+{
+	dw_csr *t = csr_new(a->rows, a->nnz, err);
+	if (!t)
+		return NULL;
+	memset(t->rowptr, 0, ((size_t)a->rows + 1) * sizeof *t->rowptr);
+	for (int64_t k = 0; k < a->nnz; k++)
+		t->rowptr[a->col[k] + 1]++;
+	for (int64_t r = 0; r < a->rows; r++)
+		t->rowptr[r + 1] += t->rowptr[r];
+	for (int64_t r = 0; r < a->rows; r++)
+		for (int64_t k = a->rowptr[r]; k < a->rowptr[r + 1]; k++) {
+			int64_t at = t->rowptr[a->col[k]]++;
+			t->col[at] = r;
+			t->val[at] = conj(a->val[k]);
+		}
+	for (int64_t r = a->rows; r > 0; r--)
+		t->rowptr[r] = t->rowptr[r - 1];
+	t->rowptr[0] = 0;
+	t->nnz = a->nnz;
+	t->is_complex = a->is_complex;
+	return t;
+}
+
+/* Walk row r of a and of ah (both sorted by column) together: *k and *l
+ * advance past column *c; *x and *y are the two entries there (0 if
+ * absent).  Returns false at the end of the row. */
+static bool merge_next(const dw_csr *a, const dw_csr *ah, int64_t r, int64_t *k,
+	int64_t *l, int64_t *c, double complex *x, double complex *y)
+{
+	int64_t ke = a->rowptr[r + 1], le = ah->rowptr[r + 1];
+	if (*k >= ke && *l >= le)
+		return false;
+	int64_t ca = *k < ke ? a->col[*k] : INT64_MAX;
+	int64_t cb = *l < le ? ah->col[*l] : INT64_MAX;
+	*c = ca < cb ? ca : cb;
+	*x = ca == *c ? a->val[(*k)++] : 0;
+	*y = cb == *c ? ah->val[(*l)++] : 0;
+	return true;
+}
+
+/* Entry by entry: |a_ij - conj(a_ji)| <= HERMITIAN_RTOL * max |a_ij|. */
+static bool csr_is_hermitian(const dw_csr *a, const dw_csr *ah)
+{
+	double maxabs = 0;
+	for (int64_t k = 0; k < a->nnz; k++)
+		maxabs = fmax(maxabs, cabs(a->val[k]));
+	for (int64_t r = 0; r < a->rows; r++) {
+		int64_t k = a->rowptr[r], l = ah->rowptr[r], c;
+		double complex x, y;
+		while (merge_next(a, ah, r, &k, &l, &c, &x, &y))
+			if (cabs(x - y) > HERMITIAN_RTOL * maxabs)
+				return false;
+	}
+	return true;
+}
+
+/* The Hermitian part of a nearly Hermitian a, padded to dp rows: entry
+ * (i, j), i < j, is h = (a_ij + conj(a_ji)) / 2 and (j, i) is conj(h);
+ * the diagonal is real; exact zeros dropped.  Rows d..dp-1 hold one
+ * diagonal entry (alpha, set later by set_padding). */
+static dw_csr *build_padded(const dw_csr *a, const dw_csr *ah, int64_t dp,
 	dw_error *err)
 {
-	int64_t nnz = dp - d;
-	for (int64_t i = 0; i < d * d; i++)
-		nnz += a[i] != 0;
+	int64_t d = a->rows, nnz = dp - d;
+	for (int64_t r = 0; r < d; r++) {
+		int64_t k = a->rowptr[r], l = ah->rowptr[r], c;
+		double complex x, y;
+		while (merge_next(a, ah, r, &k, &l, &c, &x, &y))
+			nnz++;
+	}
 	dw_csr *m = csr_new(dp, nnz, err);
 	if (!m)
 		return NULL;
@@ -189,47 +255,60 @@ static dw_csr *build_padded(const double complex *a, int64_t d, int64_t dp,
 			csr_push(m, r, 0);
 			continue;
 		}
-		for (int64_t c = 0; c < d; c++)
-			if (a[c + r * d] != 0)
-				csr_push(m, c, conj(a[c + r * d]));
+		int64_t k = a->rowptr[r], l = ah->rowptr[r], c;
+		double complex x, y, h;
+		while (merge_next(a, ah, r, &k, &l, &c, &x, &y)) {
+			/* y = conj(a_cr); the upper entry (min, max) is averaged
+			 * first, as in (a_ij + conj(a_ji)) / 2 */
+			if (c == r)
+				h = creal(x);
+			else if (r < c)
+				h = (x + y) / 2;
+			else
+				h = conj((conj(y) + conj(x)) / 2);
+			if (h != 0)
+				csr_push(m, c, h);
+		}
 	}
 	m->rowptr[dp] = m->nnz;
 	return m;
 }
 
-/* Dilation of the padded A (dp x dp, dense a is d x d column-major):
- * rows i < dp hold A in columns dp + j; rows dp + j hold A^dagger. */
-static dw_csr *build_dilation(const double complex *a, int64_t d, int64_t dp,
+/* Dilation of the padded A (dp x dp, a is d x d with adjoint ah): rows
+ * i < dp hold A in columns dp + j; rows dp + j hold A^dagger. */
+static dw_csr *build_dilation(const dw_csr *a, const dw_csr *ah, int64_t dp,
 	dw_error *err)
 {
-	int64_t nnz = 2 * (dp - d);
-	for (int64_t i = 0; i < d * d; i++)
-		nnz += 2 * (a[i] != 0);
-	dw_csr *m = csr_new(2 * dp, nnz, err);
+	int64_t d = a->rows;
+	dw_csr *m = csr_new(2 * dp, 2 * (dp - d) + 2 * a->nnz, err);
 	if (!m)
 		return NULL;
-	for (int64_t i = 0; i < dp; i++) {
-		m->rowptr[i] = m->nnz;
-		if (i >= d) {
-			csr_push(m, dp + i, 0);
-			continue;
+	for (int half = 0; half < 2; half++) {
+		const dw_csr *src = half ? ah : a;
+		for (int64_t i = 0; i < dp; i++) {
+			int64_t row = half * dp + i;
+			m->rowptr[row] = m->nnz;
+			if (i >= d) {
+				csr_push(m, half ? i : dp + i, 0);
+				continue;
+			}
+			for (int64_t k = src->rowptr[i]; k < src->rowptr[i + 1]; k++)
+				if (src->val[k] != 0)
+					csr_push(m, (half ? 0 : dp) + src->col[k], src->val[k]);
 		}
-		for (int64_t j = 0; j < d; j++)
-			if (a[i + j * d] != 0)
-				csr_push(m, dp + j, a[i + j * d]);
-	}
-	for (int64_t j = 0; j < dp; j++) {
-		m->rowptr[dp + j] = m->nnz;
-		if (j >= d) {
-			csr_push(m, j, 0);
-			continue;
-		}
-		for (int64_t i = 0; i < d; i++)
-			if (a[i + j * d] != 0)
-				csr_push(m, i, conj(a[i + j * d]));
 	}
 	m->rowptr[2 * dp] = m->nnz;
 	return m;
+}
+
+/* Column-major dense copy of the first d rows/columns of m. */
+static double complex *csr_dense(const dw_csr *m, int64_t d, dw_error *err)
+{
+	double complex *a = dw_alloc(err, (size_t)(d * d), sizeof *a);
+	for (int64_t r = 0; a && r < d; r++)
+		for (int64_t k = m->rowptr[r]; k < m->rowptr[r + 1]; k++)
+			a[r + m->col[k] * d] += m->val[k];
+	return a;
 }
 
 /* Put alpha on the padding diagonal: each padding row has its one entry. */
@@ -286,14 +365,94 @@ static int adapt_rhs(dw_problem *p, int64_t d, int64_t dp, bool dilate, dw_error
 	return DW_OK;
 }
 
+/* Dense spectrum (d <= DENSE_MAX_ROWS): eigenvalues of the Hermitian
+ * part (first d rows of the padded h), or singular values of a. */
+static int dense_spectrum(const dw_csr *src, int64_t d, bool hermitian,
+	int64_t dp, double *alpha, double *smin, double *lmin, double *lmax,
+	dw_error *err)
+{
+	double complex *a = csr_dense(src, d, err);
+	double *w = dw_alloc(err, (size_t)d, sizeof *w);
+	int rc = a && w ? DW_OK : err->status;
+	*alpha = 0;
+	*smin = INFINITY;
+	if (!rc && hermitian) {
+		rc = eig_hermitian(a, d, w, err);
+		for (int64_t i = 0; !rc && i < d; i++) {
+			*alpha = fmax(*alpha, fabs(w[i]));
+			*smin = fmin(*smin, fabs(w[i]));
+		}
+		if (!rc) {
+			*lmin = w[0];
+			*lmax = d < dp ? fmax(w[d - 1], *alpha) : w[d - 1];
+		}
+	} else if (!rc) {
+		lapack_int info = LAPACKE_zgesdd(LAPACK_COL_MAJOR, 'N', (lapack_int)d,
+			(lapack_int)d, a, (lapack_int)d, w, NULL, 1, NULL, 1);
+		if (info != 0)
+			rc = dw_fail(err, DW_EINTERNAL, "LAPACKE_zgesdd failed (info %d)",
+				(int)info);
+		if (!rc) {
+			*alpha = w[0];
+			*smin = w[d - 1];
+			*lmin = -*alpha;
+			*lmax = *alpha;
+		}
+	}
+	free(a);
+	free(w);
+	return rc;
+}
+
+/* Sparse spectrum (lanczos.c) of the Hermitian part h (padded rows
+ * excluded), or of the dilation of a.  The figures are safe bounds:
+ * alpha >= ||A||, smin <= sigma_min, so kappa is an upper estimate. */
+static int sparse_spectrum(dw_problem *p, const dw_csr *h, const dw_csr *a,
+	const dw_csr *ah, int64_t dp, double *alpha, double *smin, double *lmin,
+	double *lmax, dw_error *err)
+{
+	dw_csr hview = {0};
+	if (h) {   /* the first d rows of the padded h: no padding entries */
+		hview = *h;
+		hview.rows = hview.cols = a->rows;
+		hview.nnz = h->rowptr[a->rows];
+	}
+	dw_hermitian_op op = h ? (dw_hermitian_op){&hview, NULL}
+		: (dw_hermitian_op){a, ah};
+	dw_lanczos_spectrum s;
+	if (dw_lanczos_spectrum_of(&op, &s, err))
+		return err->status;
+	*alpha = s.alpha;
+	*smin = s.sigma_min;
+	if (!(s.sigma_min > 0)) {
+		const dw_lanczos_run *r = s.used_squared ? &s.squared : &s.plain;
+		if (p->kappa_user > 0) {   /* trusted bound: sigma_min from it */
+			*smin = s.alpha / p->kappa_user;
+		} else {
+			return dw_fail_at(err, DW_EINPUT, p->path, 0, "matrix.file: Lanczos "
+				"could not bound the smallest |eigenvalue| of this %lld-row "
+				"matrix away from zero (%s after %d steps: Ritz value %.6g, "
+				"residual %.3g%s); it may be singular or badly conditioned; "
+				"give schedule.kappa to supply a trusted bound",
+				(long long)a->rows, s.used_squared ? "on A^2" : "on A",
+				r->iterations, r->ritz_min, r->res_min,
+				r->converged ? "" : ", not converged");
+		}
+	}
+	if (h) {
+		*lmin = s.lambda_lo;
+		*lmax = a->rows < dp ? fmax(s.lambda_hi, s.alpha) : s.lambda_hi;
+	} else {
+		*lmin = -s.alpha;
+		*lmax = s.alpha;
+	}
+	return DW_OK;
+}
+
 static int analyse_file(dw_problem *p, dw_error *err)
 {
 	const dw_csr *in = p->matrix;
 	int64_t d = in->rows;
-	if (d > DENSE_MAX_ROWS)
-		return dw_fail_at(err, DW_EINPUT, p->path, 0, "matrix.file: %lld rows; "
-			"sparse spectrum estimation not yet available (dense analysis "
-			"handles up to %d rows)", (long long)d, DENSE_MAX_ROWS);
 	int64_t dp = (int64_t)1 << p->n;
 	if (d != dp && (p->rhs_kind == DW_RHS_PRODUCT || p->rhs_kind == DW_RHS_CIRCUIT))
 		return dw_fail_at(err, DW_EINPUT, p->path, 0, "rhs.%s: the matrix has "
@@ -301,68 +460,25 @@ static int analyse_file(dw_problem *p, dw_error *err)
 			"padding, so give rhs.amplitudes or rhs.file instead",
 			p->rhs_kind == DW_RHS_PRODUCT ? "product" : "circuit",
 			(long long)d, (long long)dp);
-	double complex *a = dw_alloc(err, (size_t)(d * d), sizeof *a);
-	if (!a)
+	dw_csr *ah = csr_adjoint(in, err);
+	if (!ah)
 		return err->status;
-	double maxabs = 0;
-	for (int64_t r = 0; r < d; r++)
-		for (int64_t k = in->rowptr[r]; k < in->rowptr[r + 1]; k++) {
-			a[r + in->col[k] * d] += in->val[k];
-		}
-	for (int64_t i = 0; i < d * d; i++)
-		maxabs = fmax(maxabs, cabs(a[i]));
-	bool hermitian = true;
-	for (int64_t j = 0; j < d && hermitian; j++)
-		for (int64_t i = 0; i <= j && hermitian; i++)
-			hermitian = cabs(a[i + j * d] - conj(a[j + i * d])) <= HERMITIAN_RTOL * maxabs;
-	int rc = DW_OK;
-	dw_csr *out = NULL;
-	double *w = NULL;
-	double alpha = 0, smin = INFINITY, lmin = 0, lmax = 0;
-	if (!rc && hermitian) {
-		for (int64_t j = 0; j < d; j++) {
-			a[j + j * d] = creal(a[j + j * d]);
-			for (int64_t i = 0; i < j; i++) {
-				double complex h = (a[i + j * d] + conj(a[j + i * d])) / 2;
-				a[i + j * d] = h;
-				a[j + i * d] = conj(h);
-			}
-		}
-		out = build_padded(a, d, dp, err);
-		w = dw_alloc(err, (size_t)d, sizeof *w);
-		rc = out && w ? eig_hermitian(a, d, w, err) : err->status;
-		for (int64_t i = 0; !rc && i < d; i++) {
-			alpha = fmax(alpha, fabs(w[i]));
-			smin = fmin(smin, fabs(w[i]));
-		}
-		if (!rc) {
-			lmin = w[0];
-			lmax = d < dp ? fmax(w[d - 1], alpha) : w[d - 1];
-		}
-	} else if (!rc) {
-		out = build_dilation(a, d, dp, err);
-		w = dw_alloc(err, (size_t)d, sizeof *w);
-		if (out && w) {
-			lapack_int info = LAPACKE_zgesdd(LAPACK_COL_MAJOR, 'N', (lapack_int)d,
-				(lapack_int)d, a, (lapack_int)d, w, NULL, 1, NULL, 1);
-			if (info != 0)
-				rc = dw_fail(err, DW_EINTERNAL, "LAPACKE_zgesdd failed (info %d)",
-					(int)info);
-		} else {
-			rc = err->status;
-		}
-		if (!rc) {
-			alpha = w[0];
-			smin = w[d - 1];
-			lmin = -alpha;
-			lmax = alpha;
-		}
-	}
-	free(a);
-	free(w);
+	bool hermitian = csr_is_hermitian(in, ah);
+	dw_csr *out = hermitian ? build_padded(in, ah, dp, err)
+		: build_dilation(in, ah, dp, err);
+	int rc = out ? DW_OK : err->status;
+	double alpha = 0, smin = 0, lmin = 0, lmax = 0;
+	bool sparse = d > DENSE_MAX_ROWS;
+	if (!rc && !sparse)
+		rc = dense_spectrum(hermitian ? out : in, d, hermitian, dp, &alpha, &smin,
+			&lmin, &lmax, err);
+	else if (!rc)
+		rc = sparse_spectrum(p, hermitian ? out : NULL, in, ah, dp, &alpha,
+			&smin, &lmin, &lmax, err);
+	dw_csr_free(ah);
 	if (!rc)
-		rc = settle(p, alpha, smin, lmin, lmax,
-			hermitian ? "lapacke-zheevd" : "lapacke-zgesdd", err);
+		rc = settle(p, alpha, smin, lmin, lmax, sparse ? "lanczos"
+			: hermitian ? "lapacke-zheevd" : "lapacke-zgesdd", err);
 	if (!rc)
 		rc = adapt_rhs(p, d, dp, !hermitian, err);
 	if (rc) {
