@@ -232,6 +232,58 @@ static void test_random_dilation(int n)
 	free(sv);
 }
 
+/* End to end through the front end: an invented scenario, a fictional
+ * pipeline of 100,000 pressure nodes, tridiag(-1, 2.5, -1) written as a
+ * symmetric Matrix Market file, analysed by dw_problem_analyse: Lanczos,
+ * P, padded to 2^17 rows; kappa against the Laplacian closed form. */
+static void test_pipeline_file(void)
+{
+	const int64_t n = 100000;
+	char mtx[] = "/tmp/dwell-pipeline-XXXXXX";
+	int fd = mkstemp(mtx);
+	FILE *f = fd >= 0 ? fdopen(fd, "w") : NULL;
+	CHECK(f != NULL, "temporary matrix file");
+	if (!f)
+		return;
+	fprintf(f, "%%%%MatrixMarket matrix coordinate real symmetric\n"
+		"%% invented: a fictional pipeline of 100000 pressure nodes\n"
+		"%lld %lld %lld\n", (long long)n, (long long)n, (long long)(2 * n - 1));
+	for (int64_t i = 1; i <= n; i++) {
+		fprintf(f, "%lld %lld 2.5\n", (long long)i, (long long)i);
+		if (i < n)
+			fprintf(f, "%lld %lld -1\n", (long long)(i + 1), (long long)i);
+	}
+	fclose(f);
+	char yaml[] = "/tmp/dwell-pipeline-yaml-XXXXXX";
+	int yd = mkstemp(yaml);
+	FILE *y = yd >= 0 ? fdopen(yd, "w") : NULL;
+	CHECK(y != NULL, "temporary yaml");
+	if (y) {
+		fprintf(y, "# invented scenario: fictional pipeline\n"
+			"matrix: {file: \"%s\"}\nrhs: {uniform: true}\n", mtx);
+		fclose(y);
+		dw_problem p;
+		dw_error e = {0};
+		int rc = dw_problem_load(yaml, NULL, 0, &p, &e);
+		if (!rc)
+			rc = dw_problem_analyse(&p, &e);
+		CHECK(rc == DW_OK, "pipeline: %s", e.msg);
+		if (!rc) {
+			double lmax = lap_eig(n, 0.5, n), lmin = lap_eig(n, 0.5, 1);
+			printf("pipeline file: kappa %.12g (%s, true %.12g), alpha %.12g, "
+				"variant %c, n %d\n", p.kappa, p.kappa_source, lmax / lmin,
+				p.alpha, p.variant, p.n);
+			CHECK(!strcmp(p.kappa_source, "lanczos"), "source %s", p.kappa_source);
+			CHECK(p.variant == 'P' && p.n == 17 && !p.dilated, "P, 17 qubits");
+			CHECK(p.alpha >= lmax && p.kappa >= lmax / lmin
+				&& p.kappa <= 1.03 * lmax / lmin, "kappa %.17g", p.kappa);
+			dw_problem_free(&p);
+		}
+		remove(yaml);
+	}
+	remove(mtx);
+}
+
 int main(void)
 {
 	test_laplacian(5000, 0.5, 1e-7);
@@ -240,5 +292,6 @@ int main(void)
 	test_random_hermitian(1500, 0);
 	test_random_hermitian(1500, 6);
 	test_random_dilation(1200);
+	test_pipeline_file();
 	return check_done();
 }
