@@ -351,7 +351,8 @@ static int depth_def(dw_circuit *c, uint32_t id, const weighting *w,
 }
 
 /* ---- depth by propagating a front vector (large definitions) ----
- * Small definitions (at most small_ports qubits, 40 by default) keep a max-plus matrix;
+ * Small definitions (at most small_ports qubits, 40 by default) and long
+ * ones (8 operations or more per qubit) keep a max-plus matrix;
  * a larger one is walked with the vector of wire fronts, its small callees
  * applied through their matrices.  A loop is iterated until one iteration
  * shifts every wire the body touches by the same amount c: the body is
@@ -365,6 +366,14 @@ static uint32_t small_ports = 40;
 void dw_cost_set_matrix_limit(uint32_t ports)
 {
 	small_ports = ports;
+}
+
+/* A matrix pays off for few qubits, or for a long body (a table lookup
+ * called in every step) that would otherwise be walked at every call. */
+static bool use_matrix(const dw_def *d)
+{
+	uint32_t m = d->nargs + d->pool;
+	return m <= small_ports || (small_ports > 0 && d->nops >= 8 * (size_t)m);
 }
 
 /* Ports (qubits) a definition touches, as a 0/1 array of nargs + pool. */
@@ -443,7 +452,7 @@ static int vec_call(dw_circuit *c, uint32_t callee, const uint32_t *port,
 	for (uint32_t i = 0; i < mc; i++)
 		sub[i] = v[port[i]];
 	int rc = DW_OK;
-	if (mc <= small_ports) {
+	if (use_matrix(cd)) {
 		const mat *cm;
 		if ((rc = depth_def(c, callee, w, &cm, sat, e)) == DW_OK) {
 			mat powered = {0};
@@ -567,7 +576,7 @@ static int depth_value(dw_circuit *c, uint32_t id, const weighting *w, int64_t *
 {
 	const dw_def *d = &c->defs[id];
 	uint32_t m = d->nargs + d->pool;
-	if (m <= small_ports) {
+	if (use_matrix(d)) {
 		const mat *x;
 		if (depth_def(c, id, w, &x, sat, e))
 			return e->status;
