@@ -155,6 +155,26 @@ int qx_parse_const_decl(qx_parser *p)
 }
 
 /* gate name ['(' params ')'] qargs '{' body '}' */
+/* Append a parsed gate or def (kind SY_GATE or SY_DEF) to the program's
+ * routine table under its name.  On failure nothing is appended and the
+ * caller still owns d (d->name may have been set). */
+static int register_routine(qx_parser *p, const qx_token *name, qx_gatedef *d, int kind)
+{
+	dw_qasm_program *g = p->prog;
+	qx_gatedef *gs = realloc(g->gates, (g->ngates + 1) * sizeof *gs);
+	if (!gs)
+		return dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
+	g->gates = gs;
+	d->name = qx_dup_tok(p, name);
+	if (!d->name)
+		return p->err->status;
+	int st = qx_declare(p, name, kind, (int)g->ngates, 0);
+	if (st)
+		return st;
+	g->gates[g->ngates++] = *d;
+	return DW_OK;
+}
+
 int qx_parse_gatedef(qx_parser *p)
 {
 	p->pos++;
@@ -218,27 +238,13 @@ int qx_parse_gatedef(qx_parser *p)
 	p->barrier = barrier;
 	p->in_gate = 0;
 	p->nslots = nslots;
-	dw_qasm_program *g = p->prog;
-	qx_gatedef *gs = NULL;
-	if (st == DW_OK) {
-		gs = realloc(g->gates, (g->ngates + 1) * sizeof *gs);
-		if (!gs)
-			st = dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
-	}
-	if (st == DW_OK) {
-		g->gates = gs;
-		d.name = qx_dup_tok(p, name);
-		if (!d.name)
-			st = p->err->status;
-	}
 	if (st == DW_OK)
-		st = qx_declare(p, name, SY_GATE, (int)g->ngates, 0);
+		st = register_routine(p, name, &d, SY_GATE);
 	if (st) {
 		free(d.name);
 		qx_free_block(&d.body);
 		return st;
 	}
-	g->gates[g->ngates++] = d;
 	return DW_OK;
 }
 void qx_free_gatedef(qx_gatedef *d)
@@ -361,26 +367,12 @@ int qx_parse_def(qx_parser *p)
 	p->in_def = NULL;
 	p->def_name = NULL;
 	p->nslots = nslots;
-	dw_qasm_program *g = p->prog;
-	qx_gatedef *gs = NULL;
-	if (st == DW_OK) {
-		gs = realloc(g->gates, (g->ngates + 1) * sizeof *gs);
-		if (!gs)
-			st = dw_fail(p->err, DW_EINTERNAL, "out of memory reading %s", p->file);
-	}
-	if (st == DW_OK) {
-		g->gates = gs;
-		d.name = qx_dup_tok(p, name);
-		if (!d.name)
-			st = p->err->status;
-	}
 	if (st == DW_OK)
-		st = qx_declare(p, name, SY_DEF, (int)g->ngates, 0);
+		st = register_routine(p, name, &d, SY_DEF);
 	if (st) {
 		qx_free_gatedef(&d);
 		return st;
 	}
-	g->gates[g->ngates++] = d;
 	return DW_OK;
 }
 
